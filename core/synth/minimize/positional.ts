@@ -159,8 +159,12 @@ export function distance(a: Cube, b: Cube, sp: Space): number {
 }
 
 /** Hashable identity of a cube (equal cubes give equal keys). */
-export function cubeKey(c: Cube): string {
-  return c.join(',');
+export function cubeKey(c: Cube): string | number {
+  // Up to 21 variables the care and value words pack exactly into one double.
+  if (c.length === 2 && c[0] < 0x200000) return c[0] * 4294967296 + c[1];
+  let s = '';
+  for (let k = 0; k < c.length; k++) s += `${c[k]},`;
+  return s;
 }
 
 /** Drop cubes contained in another cube of the list (single-cube containment); keeps the first of equal cubes. */
@@ -180,4 +184,17 @@ export function singleCubeContainment(cover: readonly Cube[], sp: Space): Cube[]
     if (!covered) kept.push(c);
   }
   return kept;
+}
+
+/** A cover stored as one contiguous word array (cube i at words [i * 2w, (i + 1) * 2w)); scanning it is cache friendly. */
+export interface FlatCover {
+  readonly words: Uint32Array;
+  readonly count: number;
+}
+
+export function flatten(cover: readonly Cube[], sp: Space): FlatCover {
+  const stride = 2 * sp.w;
+  const words = new Uint32Array(cover.length * stride);
+  cover.forEach((c, i) => words.set(c, i * stride));
+  return { words, count: cover.length };
 }

@@ -5,9 +5,9 @@ import {
   type Cube,
   type Space,
   cofactorCover,
-  contains,
   cubeKey,
   intersect,
+  intersects,
   isUniverse,
   literalCount,
   literalCube,
@@ -152,16 +152,14 @@ function withLiteral(c: Cube, sp: Space, v: number, positive: boolean): Cube {
   return r;
 }
 
-/** Above this many cube pairs the merge step only lifts identical cubes, to stay near-linear. */
-const MERGE_PAIR_LIMIT = 1 << 20;
-
 /**
- * Recombine x'.C0 + x.C1. A cube of one half that is contained in a cube of the other half keeps
- * no literal of x (x'a + xb = a + xb when a lies in b), which keeps the complement compact.
+ * Recombine x'.C0 + x.C1, where C0 and C1 complement the cofactors F0 and F1. A cube a of C0 may
+ * drop its x' literal when a also misses every cube of F1 (then x.a lies in the complement too);
+ * likewise for C1 against F0. Lifting keeps the complement small.
  */
-function mergeHalves(c0: Cube[], c1: Cube[], sp: Space, v: number): Cube[] {
+function mergeHalves(c0: Cube[], c1: Cube[], F0: readonly Cube[], F1: readonly Cube[], sp: Space, v: number): Cube[] {
   const out: Cube[] = [];
-  const seen = new Set<string>();
+  const seen = new Set<string | number>();
   const push = (c: Cube): void => {
     const key = cubeKey(c);
     if (!seen.has(key)) {
@@ -169,16 +167,12 @@ function mergeHalves(c0: Cube[], c1: Cube[], sp: Space, v: number): Cube[] {
       out.push(c);
     }
   };
-  const thorough = c0.length * c1.length <= MERGE_PAIR_LIMIT;
-  const keys1 = thorough ? null : new Set(c1.map(cubeKey));
-  const keys0 = thorough ? null : new Set(c0.map(cubeKey));
-  const inside = (a: Cube, other: Cube[], keys: Set<string> | null): boolean => {
-    if (keys !== null) return keys.has(cubeKey(a));
-    for (const b of other) if (contains(b, a, sp)) return true;
-    return false;
+  const missesAll = (a: Cube, F: readonly Cube[]): boolean => {
+    for (const f of F) if (intersects(a, f, sp)) return false;
+    return true;
   };
-  for (const a of c0) push(inside(a, c1, keys1) ? a : withLiteral(a, sp, v, false));
-  for (const b of c1) push(inside(b, c0, keys0) ? b : withLiteral(b, sp, v, true));
+  for (const a of c0) push(missesAll(a, F1) ? a : withLiteral(a, sp, v, false));
+  for (const b of c1) push(missesAll(b, F0) ? b : withLiteral(b, sp, v, true));
   return out;
 }
 
@@ -189,9 +183,9 @@ export function complement(F: readonly Cube[], sp: Space): Cube[] {
   if (F.length === 1) return complementCube(F[0], sp);
   const cols = columns(F, sp);
   const { v } = splitVariable(cols, sp);
-  const c0 = complement(cofactorCover(F, literalCube(sp, v, false), sp), sp);
-  const c1 = complement(cofactorCover(F, literalCube(sp, v, true), sp), sp);
-  return mergeHalves(c0, c1, sp, v);
+  const F0 = cofactorCover(F, literalCube(sp, v, false), sp);
+  const F1 = cofactorCover(F, literalCube(sp, v, true), sp);
+  return mergeHalves(complement(F0, sp), complement(F1, sp), F0, F1, sp, v);
 }
 
 /**
