@@ -35,7 +35,7 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
   const last = trace[trace.length - 1];
   io.out(`\nSummary: ${trace.length} cycles, ${moves} state changes.\n`);
   io.out(`  cycles per state: ${[...visits].map(([s, n]) => `${s} ${n}`).join(', ')}\n`);
-  if (last) io.out(`  registers after the last cycle's inputs: ${m.registers.map((r, i) => `${r.name}=${formatValue(last.regs[i], r.type.width, r.type.signed)}`).join(', ')}\n`);
+  if (last) io.out(`  registers during the last cycle: ${m.registers.map((r, i) => `${r.name}=${formatValue(last.regs[i], r.type.width, r.type.signed)}`).join(', ')}\n`);
   io.out('\nNext: twinstep synth, twinstep gen, or `npm start` for the app.\n');
   return EXIT.ok;
 }
