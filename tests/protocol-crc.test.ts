@@ -52,6 +52,14 @@ describe('CRC-16/IBM-3740', () => {
     });
   });
 
+  it('shifts left by 8 when fed its own high byte (the hardware sends the CRC this way)', () => {
+    // Follows from the update rule r' = (r << 8) ^ T[(r >> 8) ^ byte] with T[0] = 0; checked for every register value.
+    for (let r = 0; r < 0x10000; r++) {
+      const next = crc16Update(r, new Uint8Array([r >>> 8]));
+      if (next !== ((r << 8) & 0xffff)) expect.fail(`register 0x${r.toString(16)} gave 0x${next.toString(16)}`);
+    }
+  });
+
   it('can be continued across chunk boundaries', () => {
     fc.assert(
       fc.property(fc.uint8Array({ maxLength: 100 }), fc.nat(100), (msg, cut) => {

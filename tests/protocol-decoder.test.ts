@@ -207,6 +207,18 @@ describe('FrameDecoder on a clean stream', () => {
     expect(d.stats).toMatchObject({ crcErrors: 1, framingErrors: 3, cycleFrames: 2 });
   });
 
+  it('tells the kinds apart by header when a cycle frame is as long as an identification frame', () => {
+    // 64 payload bits: 1 + 8 + 2 = 11 raw bytes, the identification frame's length.
+    const wide = makeLayout([{ name: 'w', width: 64 }]);
+    const d = new FrameDecoder(wide);
+    const events = d.push(concat([
+      encodeIdFrame({ fingerprint: 1, layoutVersion: 1, payloadBits: 64, nextCounter: 0, afterReset: true }),
+      encodeCycleFrame(wide, 0, [0x8000_0000_0000_0001n]),
+    ]));
+    expect(events.map((e) => e.kind)).toEqual(['id', 'cycle']);
+    expect(cycles(events)).toEqual([{ counter: 0, values: [0x8000_0000_0000_0001n] }]);
+  });
+
   it('skips an endless run without a delimiter once, then resynchronises', () => {
     const d = new FrameDecoder(layout);
     const events = d.push(concat([new Uint8Array(1000).fill(0x55), new Uint8Array([0]), encodeCycleFrame(layout, 9, [1n, 1n, 1n])]));

@@ -33,8 +33,11 @@ export const ID_FRAME_BYTES = 1 + ID_BODY_BYTES + 2;
 /** Bit 7 of the last body byte: this identification frame is the first one after a reset. */
 export const ID_FLAG_AFTER_RESET = 0x80;
 
-/** A transmitter sends an identification frame after reset and then before every 256th cycle frame. */
-export const ID_PERIOD = 256;
+/**
+ * A transmitter sends an identification frame before the first cycle frame after reset and then before
+ * every cycle frame whose counter is 0, i.e. once per counter wrap (128 frames).
+ */
+export const ID_PERIOD = COUNTER_MODULUS;
 
 /** Frames are kept to one COBS run (at most 254 bytes before stuffing), so stuffing adds exactly one byte. */
 export const MAX_FRAME_BYTES = 254;

@@ -4,3 +4,5 @@ export * from './crc';
 export * from './cobs';
 export * from './frame';
 export * from './decoder';
+export * from './baud';
+export * from './verilog/index';

@@ -57,31 +57,31 @@ export type MachineSummary = z.infer<typeof MachineSummarySchema>;
 
 // ---------------------------------------------------------------- requests
 
-export const DesignCheckParams = z.object({ text: DesignText, file: FileName });
+export const DesignCheckParams = z.strictObject({ text: DesignText, file: FileName });
 export const StimulusSchema = z.discriminatedUnion('kind', [
-  z.object({ kind: z.literal('random'), cycles: z.number().int().min(1).max(MAX_SIM_CYCLES), seed: z.number().int().min(0).max(0xffffffff) }),
-  z.object({ kind: z.literal('csv'), csv: z.string().max(MAX_STIMULUS_CHARS) }),
+  z.strictObject({ kind: z.literal('random'), cycles: z.number().int().min(1).max(MAX_SIM_CYCLES), seed: z.number().int().min(0).max(0xffffffff) }),
+  z.strictObject({ kind: z.literal('csv'), csv: z.string().max(MAX_STIMULUS_CHARS) }),
 ]);
 export type Stimulus = z.infer<typeof StimulusSchema>;
-export const DesignSimulateParams = z.object({ text: DesignText, file: FileName, stimulus: StimulusSchema });
+export const DesignSimulateParams = z.strictObject({ text: DesignText, file: FileName, stimulus: StimulusSchema });
 export const EncodingSchema = z.enum(['binary', 'gray', 'onehot', 'custom']);
 export type Encoding = z.infer<typeof EncodingSchema>;
-export const SynthRunParams = z.object({ text: DesignText, file: FileName, encoding: EncodingSchema });
-export const SynthCompareParams = z.object({ text: DesignText, file: FileName });
+export const SynthRunParams = z.strictObject({ text: DesignText, file: FileName, encoding: EncodingSchema });
+export const SynthCompareParams = z.strictObject({ text: DesignText, file: FileName });
 export const DemoIdSchema = z.string().regex(/^[a-z0-9_]{1,64}$/, 'a demo id is lower-case letters, digits and _');
-export const ReadDemoParams = z.object({ id: DemoIdSchema });
-const NoParams = z.object({}).strict().optional();
+export const ReadDemoParams = z.strictObject({ id: DemoIdSchema });
+const NoParams = z.strictObject({}).optional();
 
-/** Every call is `{ method, params }`; the method picks the params schema. */
+/** Every call is `{ method, params }`; the method picks the params schema. Unknown keys are refused, not dropped. */
 export const ApiRequestSchema = z.discriminatedUnion('method', [
-  z.object({ method: z.literal('app.info'), params: NoParams }),
-  z.object({ method: z.literal('design.check'), params: DesignCheckParams }),
-  z.object({ method: z.literal('design.simulate'), params: DesignSimulateParams }),
-  z.object({ method: z.literal('synth.run'), params: SynthRunParams }),
-  z.object({ method: z.literal('synth.compare'), params: SynthCompareParams }),
-  z.object({ method: z.literal('files.listDemos'), params: NoParams }),
-  z.object({ method: z.literal('files.readDemo'), params: ReadDemoParams }),
-  z.object({ method: z.literal('safety.notes'), params: NoParams }),
+  z.strictObject({ method: z.literal('app.info'), params: NoParams }),
+  z.strictObject({ method: z.literal('design.check'), params: DesignCheckParams }),
+  z.strictObject({ method: z.literal('design.simulate'), params: DesignSimulateParams }),
+  z.strictObject({ method: z.literal('synth.run'), params: SynthRunParams }),
+  z.strictObject({ method: z.literal('synth.compare'), params: SynthCompareParams }),
+  z.strictObject({ method: z.literal('files.listDemos'), params: NoParams }),
+  z.strictObject({ method: z.literal('files.readDemo'), params: ReadDemoParams }),
+  z.strictObject({ method: z.literal('safety.notes'), params: NoParams }),
 ]);
 export type ApiRequest = z.infer<typeof ApiRequestSchema>;
 export type ApiMethod = ApiRequest['method'];
@@ -140,8 +140,18 @@ export type SynthResultView = z.infer<typeof SynthResultSchema>;
 
 export const SynthCompareSchema = z.object({
   diagnostics: z.array(DiagnosticSchema),
-  /** One column per encoding; `metrics` keys are shared by all columns. */
-  columns: z.array(z.object({ encoding: EncodingSchema, available: z.boolean(), note: z.string(), metrics: z.record(z.string(), z.number()) })),
+  /** One column per encoding variant (one-hot may have two); `metrics` keys are shared by all columns. */
+  columns: z.array(
+    z.object({
+      label: z.string(),
+      /** The encoding choice this column belongs to. */
+      encoding: EncodingSchema,
+      /** False when the encoding cannot be used for this design; `note` says why. */
+      available: z.boolean(),
+      note: z.string(),
+      metrics: z.record(z.string(), z.number()),
+    }),
+  ),
   metricNames: z.array(z.object({ key: z.string(), label: z.string() })),
 });
 export type SynthCompareView = z.infer<typeof SynthCompareSchema>;
@@ -193,6 +203,3 @@ export function describeIssues(error: z.ZodError): string {
 export interface TwinstepBridge {
   call(request: unknown): Promise<ApiReply<unknown>>;
 }
-
-/** The IPC channel name used by the Electron shell. */
-export const IPC_CHANNEL = 'twinstep';

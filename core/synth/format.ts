@@ -28,8 +28,12 @@ function roleText(o: ControllerOutput): string {
   return `select bit ${o.bit} of ${o.drives}`;
 }
 
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : 's'}`;
+}
+
 function equationLines(eqs: readonly Equation[]): string[] {
-  return columns(eqs.map((e) => [e.text, `[${e.cost.products} products, ${e.cost.literals} literals, ${e.method}]`]));
+  return columns(eqs.map((e) => [e.text, `[${plural(e.cost.products, 'product')}, ${plural(e.cost.literals, 'literal')}, ${e.method}]`]));
 }
 
 export function formatSynthesis(s: Synthesis): string {
@@ -107,7 +111,7 @@ export function formatSynthesis(s: Synthesis): string {
     out.push(...equationLines(s.fullDecode));
   }
   out.push('');
-  out.push(`Cost: ${s.cost.flipFlops} flip-flops, ${s.cost.products} product terms, ${s.cost.literals} literals, ${s.cost.gates2} two-input gates`);
+  out.push(`Cost: ${plural(s.cost.flipFlops, 'flip-flop')}, ${plural(s.cost.products, 'product term')}, ${plural(s.cost.literals, 'literal')}, ${plural(s.cost.gates2, 'two-input gate')}`);
   return out.join('\n') + '\n';
 }
 
@@ -116,6 +120,7 @@ export function formatComparison(c: EncodingComparison): string {
   const all = [['encoding', 'flip-flops', 'products', 'literals', '2-input gates'], ...rows];
   const widths = all[0].map((_, i) => Math.max(...all.map((r) => r[i].length)));
   const lines = all.map((r) => '  ' + r.map((x, i) => (i === 0 ? x.padEnd(widths[i]) : x.padStart(widths[i]))).join('  '));
-  const notes = c.rows.filter((r) => !r.ok).map((r) => `  ${r.encoding}: ${r.error}`);
+  // Each message already names its encoding.
+  const notes = c.rows.filter((r) => !r.ok && r.encoding !== 'onehot full decode').map((r) => `  ${r.error}`);
   return [`${c.machine}: state encodings compared (controller equations only)`, ...lines, ...(notes.length ? ['', ...notes] : [])].join('\n') + '\n';
 }

@@ -24,9 +24,16 @@ export function parsePort(text: string | undefined): { port: number } | { proble
 /** Starts serve mode for other entry points (npm start); the caller owns closing it. */
 export async function startServe(port: number, io: Pick<CliIO, 'err'>): Promise<RunningServer> {
   const root = appRoot();
-  await ensureRendererBuilt(root, io.err);
   const handlers = createHandlers({ shell: 'serve', version: APP_VERSION, demoDir: demoDir(root) });
-  return startServer({ handlers, staticDir: rendererDist(root), port });
+  // Bind first, so a taken port is reported at once rather than after a build.
+  const server = await startServer({ handlers, staticDir: rendererDist(root), port });
+  try {
+    await ensureRendererBuilt(root, io.err);
+  } catch (e) {
+    await server.close();
+    throw new Error(`the renderer could not be built: ${e instanceof Error ? e.message : String(e)}`);
+  }
+  return server;
 }
 
 export async function run(argv: string[], io: CliIO): Promise<number> {

@@ -15,9 +15,15 @@ const BINARY_TEXT: Record<string, { text: string; prec: number }> = {
   or: { text: '|', prec: 5 },
   xor: { text: '^', prec: 6 },
   and: { text: '&', prec: 7 },
-  add: { text: '+', prec: 9 },
-  sub: { text: '-', prec: 9 },
+  add: { text: '+', prec: 10 },
+  sub: { text: '-', prec: 10 },
 };
+
+/** Precedence levels of the design language, loosest first (as its parser reads them). */
+const CONCAT_PREC = 8;
+const SHIFT_PREC = 9;
+const UNARY_PREC = 11;
+const POSTFIX_PREC = 12;
 
 function constText(bits: string, width: number, signed: boolean): string {
   const v = BigInt(bits);
@@ -38,19 +44,21 @@ export function exprText(e: Expr, parentPrec = 0): string {
       return exprText(e.arg, parentPrec);
     case 'unary': {
       const op = e.op === 'lnot' ? 'not ' : e.op === 'neg' ? '-' : '~';
-      const prec = e.op === 'lnot' ? 3 : 11;
+      const prec = e.op === 'lnot' ? 3 : UNARY_PREC;
       return wrap(op + exprText(e.arg, prec + 1), prec);
     }
     case 'binary': {
       const b = BINARY_TEXT[e.op];
-      return wrap(`${exprText(e.left, b.prec)} ${b.text} ${exprText(e.right, b.prec + 1)}`, b.prec);
+      // Comparisons do not chain, so a comparison operand of a comparison needs parentheses on both sides.
+      const leftPrec = b.prec === 4 ? 5 : b.prec;
+      return wrap(`${exprText(e.left, leftPrec)} ${b.text} ${exprText(e.right, b.prec + 1)}`, b.prec);
     }
     case 'shift':
-      return wrap(`${exprText(e.arg, 8)} ${e.dir === 'left' ? '<<' : '>>'} ${e.amount}`, 8);
+      return wrap(`${exprText(e.arg, SHIFT_PREC)} ${e.dir === 'left' ? '<<' : '>>'} ${e.amount}`, SHIFT_PREC);
     case 'slice':
-      return `${exprText(e.arg, 12)}[${e.msb === e.lsb ? e.msb : `${e.msb}:${e.lsb}`}]`;
+      return `${exprText(e.arg, POSTFIX_PREC)}[${e.msb === e.lsb ? e.msb : `${e.msb}:${e.lsb}`}]`;
     case 'concat':
-      return wrap(e.parts.map((p) => exprText(p, 10)).join(' ++ '), 10);
+      return wrap(e.parts.map((p) => exprText(p, CONCAT_PREC + 1)).join(' ++ '), CONCAT_PREC);
   }
 }
 

@@ -13,11 +13,14 @@ function builder(name: string, group: Track['group'], width: number, signed: boo
   return { track: { name, group, width, signed, at: [], values: [] }, last: null };
 }
 
+/** Decimal text of small values, made once: most changes are of 1-bit and byte-wide signals. */
+const SMALL = Array.from({ length: 256 }, (_, i) => String(i));
+
 function push(b: Builder, cycle: number, value: bigint): void {
-  if (b.last !== null && b.last === value) return;
+  if (b.last === value) return;
   b.last = value;
   b.track.at.push(cycle);
-  b.track.values.push(value.toString());
+  b.track.values.push(value < 256n ? SMALL[Number(value)] : value.toString());
 }
 
 /** Tracks in display order: inputs, the state, registers, outputs. */

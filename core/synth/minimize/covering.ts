@@ -1,5 +1,5 @@
 // Minimum-cost unate covering (the prime implicant table): essential columns, row and column
-// dominance, then branch and bound with an independent-row lower bound, under a node budget.
+// dominance, then branch and bound with an independent-row lower bound, under a work budget.
 
 /**
  * A covering matrix: every row must be covered by at least one chosen column. `rowCols[r]` lists
@@ -11,12 +11,15 @@ export interface CoverMatrix {
   cost: readonly number[];
 }
 
-export interface CoverResult {
+export type CoverResult =
   /** Chosen columns of a minimum-cost cover. */
-  cols: number[];
-  cost: number;
-  nodes: number;
-}
+  | { kind: 'optimal'; cols: number[]; cost: number; nodes: number }
+  /** No cover is cheaper than the given upper bound, so a cover of that cost is optimal. */
+  | { kind: 'bound-optimal'; nodes: number }
+  /** A row no column covers. */
+  | { kind: 'infeasible' }
+  /** The work budget ran out first. */
+  | { kind: 'budget' };
 
 /** Search state: which rows still need covering, which columns may still be chosen. */
 interface Node {
@@ -29,20 +32,36 @@ interface Node {
 class BudgetExceeded extends Error {}
 
 /**
- * Solve the covering problem exactly. Returns null when the matrix has an uncoverable row or
- * when the search needs more than `maxNodes` branch-and-bound nodes.
+ * Solve the covering problem exactly, looking only for covers cheaper than `upperBound` (pass
+ * Infinity when no cover is known). `maxWork` bounds the matrix entries visited in total, which
+ * keeps the time of a hopeless search bounded (roughly proportional to it).
  */
-export function solveCover(m: CoverMatrix, maxNodes: number): CoverResult | null {
+export function solveCover(m: CoverMatrix, maxWork: number, upperBound = Infinity): CoverResult {
   const nRows = m.rowCols.length;
   const nCols = m.colRows.length;
-  for (let r = 0; r < nRows; r++) if (m.rowCols[r].length === 0) return null;
+  for (let r = 0; r < nRows; r++) if (m.rowCols[r].length === 0) return { kind: 'infeasible' };
   const stamp = new Int32Array(Math.max(nRows, nCols));
   let stampNow = 0;
   let nodes = 0;
+  let work = 0;
   let best: { cols: number[]; cost: number } | null = null;
+  let bound = upperBound;
 
-  const activeCols = (n: Node, r: number): number[] => m.rowCols[r].filter((c) => n.colOn[c] === 1);
-  const activeRows = (n: Node, c: number): number[] => m.colRows[c].filter((r) => n.rowOn[r] === 1);
+  const activeCols = (n: Node, r: number): number[] => {
+    const all = m.rowCols[r];
+    work += all.length;
+    if (work > maxWork) throw new BudgetExceeded();
+    const out: number[] = [];
+    for (const c of all) if (n.colOn[c] === 1) out.push(c);
+    return out;
+  };
+  const activeRows = (n: Node, c: number): number[] => {
+    const all = m.colRows[c];
+    work += all.length;
+    const out: number[] = [];
+    for (const r of all) if (n.rowOn[r] === 1) out.push(r);
+    return out;
+  };
 
   const select = (n: Node, c: number): void => {
     n.chosen.push(c);
@@ -150,15 +169,18 @@ export function solveCover(m: CoverMatrix, maxNodes: number): CoverResult | null
   };
 
   const search = (n: Node): void => {
-    if (++nodes > maxNodes) throw new BudgetExceeded();
+    nodes++;
     if (!simplify(n)) return;
     const open: number[] = [];
     for (let r = 0; r < nRows; r++) if (n.rowOn[r] === 1) open.push(r);
     if (open.length === 0) {
-      if (best === null || n.cost < best.cost) best = { cols: [...n.chosen], cost: n.cost };
+      if (n.cost < bound) {
+        best = { cols: [...n.chosen], cost: n.cost };
+        bound = n.cost;
+      }
       return;
     }
-    if (best !== null && n.cost + lowerBound(n, open) >= best.cost) return;
+    if (n.cost >= bound || n.cost + lowerBound(n, open) >= bound) return;
     // Branch on the hardest row; try its columns best first, and exclude each tried column from
     // the later branches (a cover using it was already explored).
     let row = open[0];
@@ -186,10 +208,10 @@ export function solveCover(m: CoverMatrix, maxNodes: number): CoverResult | null
   try {
     search(root);
   } catch (e) {
-    if (e instanceof BudgetExceeded) return null;
+    if (e instanceof BudgetExceeded) return { kind: 'budget' };
     throw e;
   }
-  if (best === null) return null;
+  if (best === null) return { kind: 'bound-optimal', nodes };
   const found = best as { cols: number[]; cost: number };
-  return { cols: found.cols, cost: found.cost, nodes };
+  return { kind: 'optimal', cols: found.cols, cost: found.cost, nodes };
 }

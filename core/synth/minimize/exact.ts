@@ -1,29 +1,26 @@
 // Exact two-level minimization: prime implicants by Quine-McCluskey tabular merging over the
 // minterms (don't-cares included), then a minimum-cost cover of the prime implicant table.
 
-import { type Cube, type Space, universe } from './positional';
+import { type Cube, type Space, literalCount, universe } from './positional';
 import { solveCover } from './covering';
 
 export interface ExactLimits {
-  /** Largest input count accepted; the minterm table has 2^inputs entries. Hard cap 20. */
+  /** Largest input count accepted; the implicant table has 3^inputs entries. Hard cap 16. */
   maxInputs: number;
-  /** Give up when merging produces more implicants than this (all levels together). */
-  maxImplicants: number;
   /** Give up when there are more prime implicants than this. */
   maxPrimes: number;
-  /** Branch-and-bound node budget of the covering step. */
-  maxNodes: number;
+  /** Work budget of the covering step, in matrix entries visited (roughly 1e7 per 0.3 s on one core). */
+  maxWork: number;
 }
 
 export const DEFAULT_EXACT_LIMITS: ExactLimits = {
   maxInputs: 16,
-  maxImplicants: 400_000,
   maxPrimes: 6_000,
-  maxNodes: 20_000,
+  maxWork: 20_000_000,
 };
 
-/** Hard cap: implicant keys pack mask and value into one double (2 * 20 bits < 53 bits). */
-const KEY_BITS_CAP = 20;
+/** Hard cap: the dense implicant table takes 3^n bytes (43 MB at 16 inputs). */
+const INPUTS_CAP = 16;
 
 /** An implicant of the tabular method: variable i is free when bit i of `mask` is set, else equals bit i of `value`. */
 interface Implicant {
@@ -35,11 +32,19 @@ export type ExactOutcome = { cover: Cube[] } | { tooLarge: string };
 
 /**
  * Minimum cover of on-set F with don't-cares D: fewest product terms, then fewest literals.
- * Reports `tooLarge` (with the reason) instead of answering when a limit is hit.
+ * Reports `tooLarge` (with the reason) instead of answering when a limit is hit. A known cover
+ * of prime implicants (`incumbent`, e.g. the heuristic's answer) bounds the search; it is
+ * returned when the search proves nothing cheaper exists.
  */
-export function exactMinimize(F: readonly Cube[], D: readonly Cube[], sp: Space, limits: ExactLimits = DEFAULT_EXACT_LIMITS): ExactOutcome {
+export function exactMinimize(
+  F: readonly Cube[],
+  D: readonly Cube[],
+  sp: Space,
+  limits: ExactLimits = DEFAULT_EXACT_LIMITS,
+  incumbent?: readonly Cube[],
+): ExactOutcome {
   const n = sp.n;
-  if (n > Math.min(limits.maxInputs, KEY_BITS_CAP)) return { tooLarge: `${n} inputs exceed the exact limit of ${Math.min(limits.maxInputs, KEY_BITS_CAP)}` };
+  if (n > Math.min(limits.maxInputs, INPUTS_CAP)) return { tooLarge: `${n} inputs exceed the exact limit of ${Math.min(limits.maxInputs, INPUTS_CAP)}` };
   // Point table: 0 off, 1 on, 2 don't-care (a don't-care wins over on where they overlap).
   const size = 1 << n;
   const table = new Uint8Array(size);
@@ -80,50 +85,89 @@ export function exactMinimize(F: readonly Cube[], D: readonly Cube[], sp: Space,
   // total of any cover with at most `rows` products, then its own literal count.
   const perProduct = n * (rows + 1) + 1;
   const cost = cols.map((p) => perProduct + (n - popcount(p.mask)));
-  const result = solveCover({ rowCols, colRows, cost }, limits.maxNodes);
-  if (result === null) return { tooLarge: `cover search exceeded ${limits.maxNodes} branch-and-bound nodes` };
-  return { cover: result.cols.map((c) => implicantCube(cols[c], sp)) };
+  let bound = Infinity;
+  if (incumbent !== undefined && incumbent.length <= rows) {
+    bound = 0;
+    for (const c of incumbent) bound += perProduct + literalCount(c, sp);
+  }
+  const result = solveCover({ rowCols, colRows, cost }, limits.maxWork, bound);
+  switch (result.kind) {
+    case 'optimal':
+      return { cover: result.cols.map((c) => implicantCube(cols[c], sp)) };
+    case 'bound-optimal':
+      return { cover: [...(incumbent as readonly Cube[])] };
+    case 'budget':
+      return { tooLarge: `cover search exceeded its work budget of ${limits.maxWork}` };
+    case 'infeasible':
+      // Cannot happen: every on-set minterm lies in some prime. Kept as a clear report anyway.
+      return { tooLarge: 'internal: an on-set minterm is in no prime implicant' };
+  }
 }
 
 /**
- * Quine-McCluskey: merge implicants that differ in exactly one fixed variable, level by level;
- * an implicant that never merges is prime. Merging partners are found by hashing instead of
- * pairwise comparison.
+ * Quine-McCluskey merging, tabulated densely: every cube over n variables has a slot in a table
+ * of 3^n entries (digit i of the slot is 0, 1 or 2 = absent for variable i). A cube with variable
+ * i absent is an implicant exactly when its two halves (variable i = 0 and = 1) are, which is the
+ * merging rule of the tabular method; visiting slots in increasing order meets both halves first.
+ * An implicant is prime when no merge with a neighbour in any of its fixed variables exists.
  */
 export function primeImplicants(table: Uint8Array, n: number, limits: ExactLimits): Implicant[] | string {
-  const size = 1 << n;
-  const shift = 2 ** n;
-  const primes: Implicant[] = [];
-  let level: Implicant[] = [];
-  for (let m = 0; m < size; m++) if (table[m] !== 0) level.push({ value: m, mask: 0 });
-  let total = level.length;
-  while (level.length > 0) {
-    const present = new Set<number>();
-    for (const t of level) present.add(t.mask * shift + t.value);
-    const merged = new Set<number>();
-    const next: Implicant[] = [];
-    const made = new Set<number>();
-    for (const t of level) {
-      for (let i = 0; i < n; i++) {
-        const bit = 1 << i;
-        if ((t.mask & bit) !== 0 || (t.value & bit) !== 0) continue;
-        const partner = t.mask * shift + (t.value | bit);
-        if (!present.has(partner)) continue;
-        merged.add(t.mask * shift + t.value);
-        merged.add(partner);
-        const mask = t.mask | bit;
-        const key = mask * shift + t.value;
-        if (!made.has(key)) {
-          made.add(key);
-          next.push({ value: t.value, mask });
-        }
+  const p3: number[] = [1];
+  for (let i = 1; i <= n; i++) p3.push(p3[i - 1] * 3);
+  const size = p3[n];
+  const imp = new Uint8Array(size);
+  const digit = new Uint8Array(n + 1);
+  for (let idx = 0; idx < size; idx++) {
+    let lowestAbsent = -1;
+    for (let i = 0; i < n; i++) {
+      if (digit[i] === 2) {
+        lowestAbsent = i;
+        break;
       }
     }
-    for (const t of level) if (!merged.has(t.mask * shift + t.value)) primes.push(t);
-    if (primes.length > limits.maxPrimes) return `more than ${limits.maxPrimes} prime implicants`;
-    total += next.length;
-    if (total > limits.maxImplicants) return `more than ${limits.maxImplicants} implicants while merging`;
-    level = next;
+    if (lowestAbsent < 0) {
+      let m = 0;
+      for (let i = 0; i < n; i++) m |= digit[i] << i;
+      imp[idx] = table[m] !== 0 ? 1 : 0;
+    } else {
+      imp[idx] = imp[idx - 2 * p3[lowestAbsent]] & imp[idx - p3[lowestAbsent]];
+    }
+    // Odometer step to the next slot.
+    for (let i = 0; i < n; i++) {
+      if (digit[i] < 2) {
+        digit[i]++;
+        break;
+      }
+      digit[i] = 0;
+    }
+  }
+  const primes: Implicant[] = [];
+  digit.fill(0);
+  for (let idx = 0; idx < size; idx++) {
+    if (imp[idx] === 1) {
+      let prime = true;
+      let value = 0;
+      let mask = 0;
+      for (let i = 0; i < n && prime; i++) {
+        const d = digit[i];
+        if (d === 2) mask |= 1 << i;
+        else {
+          value |= d << i;
+          if (imp[idx + (2 - d) * p3[i]] === 1) prime = false;
+        }
+      }
+      if (prime) {
+        primes.push({ value, mask });
+        if (primes.length > limits.maxPrimes) return `more than ${limits.maxPrimes} prime implicants`;
+      }
+    }
+    for (let i = 0; i < n; i++) {
+      if (digit[i] < 2) {
+        digit[i]++;
+        break;
+      }
+      digit[i] = 0;
+    }
   }
   return primes;
 }

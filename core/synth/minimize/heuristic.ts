@@ -14,7 +14,9 @@ import {
   literalCount,
   popcount32,
   singleCubeContainment,
+  universe,
 } from './positional';
+import { irredundant } from './irredundant';
 import { complement, complementSupercube, coversCube } from './unate';
 
 /** Cost of a cover in the order the minimizer optimizes: product terms first, then literals. */
@@ -40,12 +42,12 @@ const MAX_PASSES = 200;
  * Minimize the on-set cover F with don't-care cover D. Returns a cover of prime implicants that
  * contains every point of F outside D and no point outside F and D.
  */
-export function espresso(F: readonly Cube[], D: readonly Cube[], sp: Space): Cube[] {
+export function heuristicMinimize(F: readonly Cube[], D: readonly Cube[], sp: Space): Cube[] {
   // Points of F that are also don't-cares need no cover: drop cubes lying wholly in D.
   let on = singleCubeContainment(F, sp).filter((c) => !coversCube(D, c, sp));
   if (on.length === 0) return [];
   const offCubes = complement([...on, ...D], sp);
-  if (offCubes.length === 0) return [new Uint32Array(2 * sp.w)];
+  if (offCubes.length === 0) return [universe(sp)];
   const R = flatten(offCubes, sp);
 
   on = expand(on, R, sp);
@@ -127,27 +129,50 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
   const forced = new Uint32Array(w);
   const Rw = R.words;
   const stride = 2 * w;
-  for (let i = 0; i < R.count; i++) {
-    const o = i * stride;
-    let bits = 0;
-    for (let k = 0; k < w; k++) {
-      const x = c[k] & Rw[o + k] & (c[w + k] ^ Rw[o + w + k]);
-      scratch[i * w + k] = x;
-      bits += popcount32(x);
+  if (w === 1) {
+    // Single-word fast path (up to 32 variables): the common case, kept free of inner loops.
+    const care = c[0];
+    const val = c[1];
+    let f = 0;
+    for (let i = 0, o = 0; i < R.count; i++, o += 2) {
+      const x = care & Rw[o] & (val ^ Rw[o + 1]);
+      scratch[i] = x;
+      if ((x & (x - 1)) === 0) f |= x;
     }
-    if (bits === 1) for (let k = 0; k < w; k++) forced[k] |= scratch[i * w + k];
+    forced[0] = f;
+  } else {
+    for (let i = 0; i < R.count; i++) {
+      const o = i * stride;
+      let bits = 0;
+      for (let k = 0; k < w; k++) {
+        const x = c[k] & Rw[o + k] & (c[w + k] ^ Rw[o + w + k]);
+        scratch[i * w + k] = x;
+        bits += popcount32(x);
+      }
+      if (bits === 1) for (let k = 0; k < w; k++) forced[k] |= scratch[i * w + k];
+    }
   }
   const rawRows: Uint32Array[] = [];
   const seen = new Set<string | number>();
-  for (let i = 0; i < R.count; i++) {
-    let hit = false;
-    for (let k = 0; k < w; k++) if ((scratch[i * w + k] & forced[k]) !== 0) hit = true;
-    if (hit) continue;
-    const row = scratch.subarray(i * w, i * w + w);
-    const key = w === 1 ? row[0] : row.join(',');
-    if (seen.has(key)) continue;
-    seen.add(key);
-    rawRows.push(row.slice());
+  if (w === 1) {
+    const f = forced[0];
+    for (let i = 0; i < R.count; i++) {
+      const x = scratch[i];
+      if ((x & f) !== 0 || seen.has(x)) continue;
+      seen.add(x);
+      rawRows.push(Uint32Array.of(x));
+    }
+  } else {
+    for (let i = 0; i < R.count; i++) {
+      let hit = false;
+      for (let k = 0; k < w; k++) if ((scratch[i * w + k] & forced[k]) !== 0) hit = true;
+      if (hit) continue;
+      const row = scratch.slice(i * w, i * w + w);
+      const key = row.join(',');
+      if (seen.has(key)) continue;
+      seen.add(key);
+      rawRows.push(row);
+    }
   }
   rawRows.sort((a, b) => countBits(a, 0, w) - countBits(b, 0, w));
   const minimal: Uint32Array[] = [];
@@ -169,7 +194,6 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
     }
     if (!implied) minimal.push(row);
   }
-  if (globalThis.__dbg) globalThis.__dbg.push([rawRows.length, minimal.length]);
   let nb = minimal.length;
   const block = new Uint32Array(nb * w);
   minimal.forEach((row, i) => block.set(row, i * w));
@@ -227,9 +251,12 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
     if (isZero(free, 0, w)) break;
 
     // Among the cubes that can still be covered together with the blocking rows, count how
-    // often each free literal must be raised; raise the most wanted one.
+    // often each free literal must be raised; raise the most wanted one. A cube found
+    // infeasible stays infeasible (raising more literals only shrinks both sides of the test,
+    // and fixing a literal the test relies on blocks the cube), so its row is dropped.
     freq.fill(0);
     let anyFeasible = false;
+    keptCover = 0;
     for (let j = 0; j < nc; j++) {
       const o = j * w;
       for (let k = 0; k < w; k++) need[k] = cover[o + k] & free[k];
@@ -246,6 +273,8 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
         if (!escapes) feasible = false;
       }
       if (!feasible) continue;
+      if (keptCover !== j) cover.copyWithin(keptCover * w, o, o + w);
+      keptCover++;
       anyFeasible = true;
       for (let k = 0; k < w; k++) {
         let m = need[k];
@@ -256,6 +285,7 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
         }
       }
     }
+    nc = keptCover;
     if (!anyFeasible) break;
     let best = -1;
     for (let v = 0; v < sp.n; v++) if (freq[v] > 0 && (best < 0 || freq[v] > freq[best])) best = v;
@@ -309,34 +339,6 @@ export function expandCube(c: Cube, R: FlatCover, others: readonly Cube[], sp: S
 }
 
 // ---------------------------------------------------------------------------------------------
-// IRREDUNDANT
-
-/**
- * Remove redundant cubes. Cubes that no other cube (with D) covers are relatively essential and
- * stay; cubes covered by those alone go; among the rest (partially redundant) a small subset
- * that keeps the cover complete is chosen greedily, dropping the cubes with most literals first.
- */
-export function irredundant(F: readonly Cube[], D: readonly Cube[], sp: Space): Cube[] {
-  const essential: Cube[] = [];
-  const rest: Cube[] = [];
-  for (let i = 0; i < F.length; i++) {
-    const others = [...F.slice(0, i), ...F.slice(i + 1), ...D];
-    if (coversCube(others, F[i], sp)) rest.push(F[i]);
-    else essential.push(F[i]);
-  }
-  const base = [...essential, ...D];
-  const partial = rest.filter((c) => !coversCube(base, c, sp));
-  partial.sort((a, b) => literalCount(b, sp) - literalCount(a, sp));
-  const keep = partial.map(() => true);
-  for (let i = 0; i < partial.length; i++) {
-    const others = [...base];
-    for (let j = 0; j < partial.length; j++) if (j !== i && keep[j]) others.push(partial[j]);
-    if (coversCube(others, partial[i], sp)) keep[i] = false;
-  }
-  return [...essential, ...partial.filter((_, i) => keep[i])];
-}
-
-// ---------------------------------------------------------------------------------------------
 // REDUCE
 
 /**
@@ -367,7 +369,7 @@ function reduceCube(c: Cube, others: readonly Cube[], sp: Space): Cube | null {
     const w = sp.w;
     for (let k = 0; k < w; k++) if ((c[k] & o[k] & (c[w + k] ^ o[w + k])) !== 0) disjoint = true;
     if (disjoint) continue;
-    const r = new Uint32Array(2 * w);
+    const r = universe(sp);
     for (let k = 0; k < w; k++) {
       r[k] = o[k] & ~c[k];
       r[w + k] = o[w + k] & r[k];

@@ -3,7 +3,7 @@
 
 import { type BoolFunction, type CubeString, MinimizeInputError, checkFunction, cubeProblem, encodeAll } from './cube';
 import { DEFAULT_EXACT_LIMITS, type ExactLimits, exactMinimize } from './exact';
-import { espresso } from './heuristic';
+import { heuristicMinimize } from './heuristic';
 import { decode, makeSpace } from './positional';
 
 export { type BoolFunction, type CubeString, MinimizeInputError, checkFunction, complementCover, cubeContains, cubeIntersect, isTautology } from './cube';
@@ -21,7 +21,7 @@ export interface CoverCost {
 }
 
 export interface MinimizeOptions {
-  /** Largest input count for which the exact method is tried (default 12). */
+  /** Largest input count for which the exact method is tried (default 12); negative disables it. */
   exactLimit?: number;
   /** Finer limits of the exact method; when one is hit the heuristic answers instead. */
   exactLimits?: Partial<ExactLimits>;
@@ -46,8 +46,8 @@ export const DEFAULT_EXACT_LIMIT = 12;
 export function minimize(f: BoolFunction, options: MinimizeOptions = {}): MinimizeResult {
   const problems = checkFunction(f);
   const exactLimit = options.exactLimit ?? DEFAULT_EXACT_LIMIT;
-  if (!Number.isInteger(exactLimit) || exactLimit < 0) problems.push(`options.exactLimit is ${String(exactLimit)}, expected a whole number >= 0`);
-  const limits: ExactLimits = { ...DEFAULT_EXACT_LIMITS, maxInputs: exactLimit, ...options.exactLimits };
+  if (!Number.isInteger(exactLimit)) problems.push(`options.exactLimit is ${String(exactLimit)}, expected a whole number`);
+  const limits: ExactLimits = { ...DEFAULT_EXACT_LIMITS, maxInputs: Math.max(0, exactLimit), ...options.exactLimits };
   for (const [key, value] of Object.entries(limits)) {
     if (typeof value !== 'number' || !(value >= 0)) problems.push(`exact limit ${key} is ${String(value)}, expected a number >= 0`);
   }
@@ -56,14 +56,15 @@ export function minimize(f: BoolFunction, options: MinimizeOptions = {}): Minimi
   const sp = makeSpace(f.inputs);
   const on = encodeAll(f.on, sp);
   const dc = encodeAll(f.dc, sp);
+  // The heuristic runs first in every case: its cover bounds the exact search from the start.
+  const heuristic = heuristicMinimize(on, dc, sp);
   let note: string | undefined;
   if (f.inputs <= exactLimit) {
-    const outcome = exactMinimize(on, dc, sp, limits);
+    const outcome = exactMinimize(on, dc, sp, limits, heuristic);
     if ('cover' in outcome) return finish(outcome.cover.map((c) => decode(c, sp)), 'exact');
     note = `exact method gave up: ${outcome.tooLarge}`;
   }
-  const cover = espresso(on, dc, sp).map((c) => decode(c, sp));
-  return finish(cover, 'heuristic', note);
+  return finish(heuristic.map((c) => decode(c, sp)), 'heuristic', note);
 }
 
 function finish(cover: CubeString[], method: 'exact' | 'heuristic', note?: string): MinimizeResult {

@@ -2,7 +2,9 @@
 // Word-parallel operations on these masks keep the heuristic free of any minterm enumeration.
 
 /**
- * A cube over `n` variables packed into `2 * w` 32-bit words (w = ceil(n / 32)).
+ * A cube over `n` variables packed into `2 * w` 32-bit words (w = ceil(n / 32)), held as signed
+ * 32-bit integers (the results of JavaScript bit operations) in a plain array, which is far
+ * cheaper to allocate than a typed array when the complement creates millions of cubes.
  * Words [0, w) hold the care mask (bit set: the variable appears as a literal);
  * words [w, 2w) hold the literal polarity (bit set: the literal is positive).
  * Invariant: a value bit is only ever set where the care bit is set, so equal
@@ -10,7 +12,7 @@
  * Variable i lives in word i >>> 5, bit i & 31; variable 0 is the leftmost
  * character of the string form.
  */
-export type Cube = Uint32Array;
+export type Cube = number[];
 
 /** The dimensions shared by all cubes of one problem. */
 export interface Space {
@@ -24,7 +26,13 @@ export function makeSpace(n: number): Space {
 
 /** The cube with no literals, i.e. the whole Boolean space. */
 export function universe(sp: Space): Cube {
-  return new Uint32Array(2 * sp.w);
+  return zeros(2 * sp.w);
+}
+
+function zeros(len: number): Cube {
+  const c: Cube = [];
+  for (let k = 0; k < len; k++) c.push(0);
+  return c;
 }
 
 export function isUniverse(c: Cube, sp: Space): boolean {
@@ -80,7 +88,7 @@ export function intersects(a: Cube, b: Cube, sp: Space): boolean {
 export function intersect(a: Cube, b: Cube, sp: Space): Cube | null {
   if (!intersects(a, b, sp)) return null;
   const w = sp.w;
-  const c = new Uint32Array(2 * w);
+  const c = zeros(2 * w);
   for (let k = 0; k < w; k++) {
     c[k] = a[k] | b[k];
     c[w + k] = a[w + k] | b[w + k];
@@ -98,15 +106,10 @@ export function contains(a: Cube, b: Cube, sp: Space): boolean {
   return true;
 }
 
-export function equal(a: Cube, b: Cube): boolean {
-  for (let k = 0; k < a.length; k++) if (a[k] !== b[k]) return false;
-  return true;
-}
-
 /** Smallest cube containing both a and b. */
 export function supercube(a: Cube, b: Cube, sp: Space): Cube {
   const w = sp.w;
-  const c = new Uint32Array(2 * w);
+  const c = zeros(2 * w);
   for (let k = 0; k < w; k++) {
     const care = a[k] & b[k] & ~(a[w + k] ^ b[w + k]);
     c[k] = care;
@@ -119,7 +122,7 @@ export function supercube(a: Cube, b: Cube, sp: Space): Cube {
 export function cofactor(c: Cube, p: Cube, sp: Space): Cube | null {
   if (!intersects(c, p, sp)) return null;
   const w = sp.w;
-  const r = new Uint32Array(2 * w);
+  const r = zeros(2 * w);
   for (let k = 0; k < w; k++) {
     const care = c[k] & ~p[k];
     r[k] = care;
@@ -150,18 +153,10 @@ export function literalCount(c: Cube, sp: Space): number {
   return n;
 }
 
-/** Number of variables in which a and b hold opposite literals. */
-export function distance(a: Cube, b: Cube, sp: Space): number {
-  const w = sp.w;
-  let d = 0;
-  for (let k = 0; k < w; k++) d += popcount32(a[k] & b[k] & (a[w + k] ^ b[w + k]));
-  return d;
-}
-
 /** Hashable identity of a cube (equal cubes give equal keys). */
 export function cubeKey(c: Cube): string | number {
   // Up to 21 variables the care and value words pack exactly into one double.
-  if (c.length === 2 && c[0] < 0x200000) return c[0] * 4294967296 + c[1];
+  if (c.length === 2 && c[0] >= 0 && c[0] < 0x200000) return c[0] * 4294967296 + (c[1] >>> 0);
   let s = '';
   for (let k = 0; k < c.length; k++) s += `${c[k]},`;
   return s;
@@ -195,6 +190,6 @@ export interface FlatCover {
 export function flatten(cover: readonly Cube[], sp: Space): FlatCover {
   const stride = 2 * sp.w;
   const words = new Uint32Array(cover.length * stride);
-  cover.forEach((c, i) => words.set(c, i * stride));
+  cover.forEach((c, i) => words.set(c, i * stride)); // stored unsigned; only ever read through bit operations
   return { words, count: cover.length };
 }

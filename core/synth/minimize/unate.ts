@@ -7,7 +7,6 @@ import {
   cofactorCover,
   cubeKey,
   intersect,
-  intersects,
   isUniverse,
   literalCount,
   literalCube,
@@ -16,12 +15,12 @@ import {
 } from './positional';
 
 /** Per-variable literal counts of a cover: how many cubes hold the negative and the positive literal. */
-interface Columns {
+export interface Columns {
   neg: Int32Array;
   pos: Int32Array;
 }
 
-function columns(F: readonly Cube[], sp: Space): Columns {
+export function columns(F: readonly Cube[], sp: Space): Columns {
   const neg = new Int32Array(sp.n);
   const pos = new Int32Array(sp.n);
   const w = sp.w;
@@ -44,7 +43,7 @@ function columns(F: readonly Cube[], sp: Space): Columns {
  * Splitting variable: the most binate one (occurs in both polarities in the most cubes, ties to the
  * most balanced), else the most frequent unate one; -1 when no cube has any literal.
  */
-function splitVariable(cols: Columns, sp: Space): { v: number; binate: boolean } {
+export function splitVariable(cols: Columns, sp: Space): { v: number; binate: boolean } {
   let best = -1;
   let bestScore = -1;
   let bestBalance = Infinity;
@@ -159,21 +158,37 @@ function withLiteral(c: Cube, sp: Space, v: number, positive: boolean): Cube {
  */
 function mergeHalves(c0: Cube[], c1: Cube[], F0: readonly Cube[], F1: readonly Cube[], sp: Space, v: number): Cube[] {
   const out: Cube[] = [];
-  const seen = new Set<string | number>();
-  const push = (c: Cube): void => {
-    const key = cubeKey(c);
-    if (!seen.has(key)) {
-      seen.add(key);
-      out.push(c);
-    }
-  };
-  const missesAll = (a: Cube, F: readonly Cube[]): boolean => {
-    for (const f of F) if (intersects(a, f, sp)) return false;
-    return true;
-  };
-  for (const a of c0) push(missesAll(a, F1) ? a : withLiteral(a, sp, v, false));
-  for (const b of c1) push(missesAll(b, F0) ? b : withLiteral(b, sp, v, true));
+  // The halves are duplicate-free and their unlifted cubes differ in x, so only a cube lifted
+  // from both halves can repeat.
+  const lifted0 = new Set<string | number>();
+  for (const a of c0) {
+    if (missesAll(a, F1, sp)) {
+      lifted0.add(cubeKey(a));
+      out.push(a);
+    } else out.push(withLiteral(a, sp, v, false));
+  }
+  for (const b of c1) {
+    if (missesAll(b, F0, sp)) {
+      if (!lifted0.has(cubeKey(b))) out.push(b);
+    } else out.push(withLiteral(b, sp, v, true));
+  }
   return out;
+}
+
+function missesAll(a: Cube, F: readonly Cube[], sp: Space): boolean {
+  const w = sp.w;
+  for (let j = 0; j < F.length; j++) {
+    const f = F[j];
+    let disjoint = false;
+    for (let k = 0; k < w; k++) {
+      if ((a[k] & f[k] & (a[w + k] ^ f[w + k])) !== 0) {
+        disjoint = true;
+        break;
+      }
+    }
+    if (!disjoint) return false;
+  }
+  return true;
 }
 
 /** The complement of a cover, as a cover (not necessarily minimal, free of duplicate cubes). */

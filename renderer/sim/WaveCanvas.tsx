@@ -1,0 +1,273 @@
+// The waveform on a <canvas>: one row per track (inputs, state by name, registers, outputs), a
+// cycle axis, zoom (Ctrl+wheel, buttons, +/-) and pan (wheel, drag, arrows). Only visible cycles are drawn.
+import { useCallback, useEffect, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
+import type { SimulationView, Track } from '../../core/services/api';
+import { formatValue } from '../../core/util/bits';
+import { PALETTE, STATE_FILLS } from '../app/palette';
+import { changeIndexAt, fitView, panBy, segmentsInView, tickStep, visibleRange, zoomAt, type WaveView } from './waveform';
+
+export type Radix = 'dec' | 'hex' | 'bin';
+
+const NAME_W = 150;
+const AXIS_H = 26;
+const ROW_H = 28;
+const FONT = '12px ui-monospace, "DejaVu Sans Mono", monospace';
+
+export function valueText(track: Track, raw: string, radix: Radix, stateNames: string[]): string {
+  if (track.group === 'state') return stateNames[Number(raw)] ?? `#${raw}`;
+  const bits = BigInt(raw);
+  return formatValue(bits, track.width, track.signed, track.width === 1 ? 'dec' : radix);
+}
+
+function drawTrack(ctx: CanvasRenderingContext2D, t: Track, y: number, view: WaveView, from: number, to: number, total: number, radix: Radix, stateNames: string[], plotW: number) {
+  const x = (c: number) => NAME_W + (c - view.start) / view.cyclesPerPx;
+  const top = y + 5;
+  const bottom = y + ROW_H - 5;
+  const mid = (top + bottom) / 2;
+  const segs = segmentsInView(t.at, total, from, to, view.cyclesPerPx);
+  ctx.lineWidth = 1.4;
+  for (const s of segs) {
+    const x0 = Math.max(NAME_W, x(s.from));
+    const x1 = Math.min(NAME_W + plotW, x(s.to));
+    if ('busy' in s) {
+      ctx.fillStyle = PALETTE.busy;
+      ctx.fillRect(x0, top, Math.max(1, x1 - x0), bottom - top);
+      continue;
+    }
+    const raw = t.values[s.index];
+    if (t.width === 1 && t.group !== 'state') {
+      const high = raw !== '0';
+      ctx.strokeStyle = t.group === 'output' ? PALETTE.accent : t.group === 'input' ? PALETTE.ok : PALETTE.teal;
+      ctx.beginPath();
+      ctx.moveTo(x0, high ? top : bottom);
+      ctx.lineTo(x1, high ? top : bottom);
+      // The edge into the next run, when that run starts inside the plot.
+      if (s.to < to && s.index + 1 < t.values.length) {
+        const nextHigh = t.values[s.index + 1] !== '0';
+        if (nextHigh !== high) ctx.lineTo(x1, nextHigh ? top : bottom);
+      }
+      ctx.stroke();
+      if (high) {
+        ctx.fillStyle = 'rgba(233,162,59,0.08)';
+        if (t.group === 'output') ctx.fillRect(x0, top, x1 - x0, bottom - top);
+      }
+      continue;
+    }
+    // A bus: a lozenge per run, with the value written inside when it fits.
+    const slant = Math.min(4, (x1 - x0) / 2);
+    if (t.group === 'state') {
+      ctx.fillStyle = STATE_FILLS[Number(raw) % STATE_FILLS.length];
+      ctx.beginPath();
+      ctx.moveTo(x0, mid);
+      ctx.lineTo(x0 + slant, top);
+      ctx.lineTo(x1 - slant, top);
+      ctx.lineTo(x1, mid);
+      ctx.lineTo(x1 - slant, bottom);
+      ctx.lineTo(x0 + slant, bottom);
+      ctx.closePath();
+      ctx.fill();
+    }
+    ctx.strokeStyle = t.group === 'state' ? PALETTE.state : PALETTE.bus;
+    ctx.beginPath();
+    ctx.moveTo(x0, mid);
+    ctx.lineTo(x0 + slant, top);
+    ctx.lineTo(x1 - slant, top);
+    ctx.lineTo(x1, mid);
+    ctx.lineTo(x1 - slant, bottom);
+    ctx.lineTo(x0 + slant, bottom);
+    ctx.closePath();
+    ctx.stroke();
+    const label = valueText(t, raw, radix, stateNames);
+    const room = x1 - x0 - 2 * slant - 4;
+    const w = ctx.measureText(label).width;
+    if (room >= w) {
+      ctx.fillStyle = t.group === 'state' ? PALETTE.text : PALETTE.text;
+      ctx.fillText(label, x0 + slant + 2, mid + 4);
+    } else if (room > 14) {
+      ctx.fillStyle = PALETTE.muted;
+      ctx.fillText('…', x0 + slant + 2, mid + 4);
+    }
+  }
+}
+
+interface Props {
+  sim: SimulationView;
+  radix: Radix;
+}
+
+export function WaveCanvas({ sim, radix }: Props) {
+  const canvas = useRef<HTMLCanvasElement>(null);
+  const box = useRef<HTMLDivElement>(null);
+  const [size, setSize] = useState({ w: 800, h: 300 });
+  const [view, setView] = useState<WaveView>({ start: 0, cyclesPerPx: 1 });
+  const [cursor, setCursor] = useState<number | null>(null);
+  const drag = useRef<{ x: number; view: WaveView } | null>(null);
+  const plotW = Math.max(50, size.w - NAME_W);
+  const total = sim.cycles;
+  const height = AXIS_H + sim.tracks.length * ROW_H + 6;
+
+  useEffect(() => {
+    const el = box.current;
+    if (!el) return;
+    const ro = new ResizeObserver(() => setSize({ w: el.clientWidth, h: height }));
+    ro.observe(el);
+    return () => ro.disconnect();
+  }, [height]);
+
+  // A short run shows whole; a long one opens at its start with 8 px per cycle, values readable.
+  const plotWRef = useRef(plotW);
+  plotWRef.current = plotW;
+  useEffect(() => {
+    const w = plotWRef.current;
+    setView(sim.cycles <= w / 8 ? fitView(w, sim.cycles) : { start: 0, cyclesPerPx: 1 / 8 });
+  }, [sim]);
+
+  useEffect(() => {
+    const c = canvas.current;
+    if (!c) return;
+    const dpr = window.devicePixelRatio || 1;
+    c.width = Math.round(size.w * dpr);
+    c.height = Math.round(height * dpr);
+    c.style.width = `${size.w}px`;
+    c.style.height = `${height}px`;
+    const ctx = c.getContext('2d');
+    if (!ctx) return;
+    ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+    ctx.font = FONT;
+    ctx.fillStyle = PALETTE.panel;
+    ctx.fillRect(0, 0, size.w, height);
+    const { from, to } = visibleRange(view, plotW, total);
+    const x = (cyc: number) => NAME_W + (cyc - view.start) / view.cyclesPerPx;
+
+    // Axis and grid.
+    const step = tickStep(view.cyclesPerPx);
+    ctx.strokeStyle = PALETTE.grid;
+    ctx.fillStyle = PALETTE.muted;
+    ctx.lineWidth = 1;
+    for (let c0 = Math.ceil(from / step) * step; c0 <= to; c0 += step) {
+      const px = Math.round(x(c0)) + 0.5;
+      ctx.beginPath();
+      ctx.moveTo(px, AXIS_H - 6);
+      ctx.lineTo(px, height);
+      ctx.stroke();
+      ctx.fillText(String(c0), px + 3, 15);
+    }
+    ctx.strokeStyle = PALETTE.line;
+    ctx.beginPath();
+    ctx.moveTo(0, AXIS_H - 0.5);
+    ctx.lineTo(size.w, AXIS_H - 0.5);
+    ctx.stroke();
+
+    // Rows.
+    ctx.save();
+    ctx.beginPath();
+    ctx.rect(NAME_W, AXIS_H, plotW, height - AXIS_H);
+    ctx.clip();
+    sim.tracks.forEach((t, i) => drawTrack(ctx, t, AXIS_H + i * ROW_H, view, from, to, total, radix, sim.stateNames, plotW));
+    if (cursor !== null && cursor >= from && cursor < to) {
+      ctx.fillStyle = 'rgba(143,180,255,0.12)';
+      ctx.fillRect(x(cursor), AXIS_H, Math.max(1, 1 / view.cyclesPerPx), height - AXIS_H);
+    }
+    ctx.restore();
+
+    // Names, grouped by colour.
+    ctx.fillStyle = PALETTE.panel2;
+    ctx.fillRect(0, AXIS_H, NAME_W - 4, height - AXIS_H);
+    sim.tracks.forEach((t, i) => {
+      const y = AXIS_H + i * ROW_H;
+      ctx.fillStyle = { input: PALETTE.ok, state: PALETTE.state, register: PALETTE.teal, output: PALETTE.accent }[t.group];
+      ctx.fillRect(0, y + 6, 3, ROW_H - 12);
+      ctx.fillStyle = PALETTE.text;
+      ctx.fillText(t.name, 10, y + ROW_H / 2 + 4);
+      ctx.fillStyle = PALETTE.muted;
+      const tag = t.group === 'state' ? 'state' : t.width === 1 ? '' : `${t.signed ? 's' : 'u'}${t.width}`;
+      if (tag) ctx.fillText(tag, NAME_W - 12 - ctx.measureText(tag).width, y + ROW_H / 2 + 4);
+      ctx.strokeStyle = PALETTE.grid;
+      ctx.beginPath();
+      ctx.moveTo(0, y + ROW_H + 0.5);
+      ctx.lineTo(size.w, y + ROW_H + 0.5);
+      ctx.stroke();
+    });
+    ctx.fillStyle = PALETTE.muted;
+    ctx.fillText('cycle', 10, 15);
+  }, [sim, view, size, radix, cursor, plotW, total, height]);
+
+  const cycleAt = useCallback((clientX: number) => {
+    const r = canvas.current!.getBoundingClientRect();
+    const px = clientX - r.left - NAME_W;
+    return px < 0 ? null : Math.floor(view.start + px * view.cyclesPerPx);
+  }, [view]);
+
+  // Wheel events are handled natively so that preventDefault works (React's wheel listener is passive).
+  useEffect(() => {
+    const c = canvas.current;
+    if (!c) return;
+    const onWheel = (e: globalThis.WheelEvent) => {
+      e.preventDefault();
+      const r = c.getBoundingClientRect();
+      if (e.ctrlKey || e.metaKey) setView((v) => zoomAt(v, e.deltaY < 0 ? 1.25 : 0.8, Math.max(0, e.clientX - r.left - NAME_W), plotW, total));
+      else setView((v) => panBy(v, e.deltaX !== 0 ? e.deltaX : e.deltaY, plotW, total));
+    };
+    c.addEventListener('wheel', onWheel, { passive: false });
+    return () => c.removeEventListener('wheel', onWheel);
+  }, [plotW, total]);
+  const onMouseDown = (e: MouseEvent) => (drag.current = { x: e.clientX, view });
+  const onMouseMove = (e: MouseEvent) => {
+    if (drag.current) setView(panBy(drag.current.view, drag.current.x - e.clientX, plotW, total));
+    const c = cycleAt(e.clientX);
+    setCursor(c !== null && c < total ? c : null);
+  };
+  const onKey = (e: KeyboardEvent) => {
+    if (e.key === '+' || e.key === '=') setView((v) => zoomAt(v, 1.5, plotW / 2, plotW, total));
+    else if (e.key === '-') setView((v) => zoomAt(v, 1 / 1.5, plotW / 2, plotW, total));
+    else if (e.key === 'ArrowRight') setView((v) => panBy(v, plotW / 4, plotW, total));
+    else if (e.key === 'ArrowLeft') setView((v) => panBy(v, -plotW / 4, plotW, total));
+    else if (e.key === '0') setView(fitView(plotW, total));
+    else return;
+    e.preventDefault();
+  };
+
+  const { from, to } = visibleRange(view, plotW, total);
+  return (
+    <div className="wave">
+      <div className="wave-tools">
+        <button onClick={() => setView((v) => zoomAt(v, 1.5, plotW / 2, plotW, total))} title="Zoom in (+)" data-testid="zoom-in">
+          +
+        </button>
+        <button onClick={() => setView((v) => zoomAt(v, 1 / 1.5, plotW / 2, plotW, total))} title="Zoom out (-)">
+          −
+        </button>
+        <button onClick={() => setView(fitView(plotW, total))} title="Whole run (0)">
+          fit
+        </button>
+        <span className="muted" data-testid="wave-range">
+          cycles {from}–{Math.max(from, to - 1)} of {total}
+        </span>
+        <span className="wave-readout" data-testid="wave-readout">
+          {cursor !== null
+            ? `cycle ${cursor}: ` +
+              sim.tracks
+                .map((t) => `${t.name}=${t.at.length ? valueText(t, t.values[changeIndexAt(t.at, cursor)], radix, sim.stateNames) : '?'}`)
+                .join('  ')
+            : 'Ctrl+wheel zooms, wheel or drag pans, hover reads values'}
+        </span>
+      </div>
+      <div className="wave-box" ref={box}>
+        <canvas
+          ref={canvas}
+          tabIndex={0}
+          aria-label={`Waveform of ${total} cycles`}
+          data-testid="waveform"
+          onMouseDown={onMouseDown}
+          onMouseMove={onMouseMove}
+          onMouseUp={() => (drag.current = null)}
+          onMouseLeave={() => {
+            drag.current = null;
+            setCursor(null);
+          }}
+          onKeyDown={onKey}
+        />
+      </div>
+    </div>
+  );
+}
