@@ -14,6 +14,11 @@ export interface HdlOptions {
   controller: ControllerStyle;
   /** Board reset pin polarity: `low` gives a `rst_n` port, `high` a `rst` port. */
   reset: ResetPolarity;
+  /**
+   * For equivalence proofs only: the behavioral controller assigns 'x' where the transition table
+   * says don't care (and on unused state codes) instead of 0, so a prover may ignore those bits.
+   */
+  dontCareAsX?: boolean;
 }
 
 export interface HdlFile {
@@ -126,11 +131,15 @@ function controllerModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleNa
     '  input  wire clk,',
     '  input  wire rst,        // synchronous-release reset from the top',
     '  input  wire ce,         // clock enable: the machine advances only when 1',
-    ...ctrlIn.map((n) => `  input  wire ${n},`),
+    ...ctrlIn.map((n, k) => {
+      const decl = `  input  wire ${n},`;
+      const irrelevant = opts.controller === 'equations' && !syn.equations.some((eq) => eq.cover.some((c) => c[enc.width + k] !== '-'));
+      return irrelevant ? `  /* verilator lint_off UNUSEDSIGNAL */ // minimization made this input irrelevant to every equation\n${decl}\n  /* verilator lint_on UNUSEDSIGNAL */` : decl;
+    }),
     ...syn.controller.outputs.map((o) => `  output ${outKind} ${o.name},${' '.repeat(Math.max(1, 22 - o.name.length))}// ${describeOutput(o)}`),
     `  output reg  ${range(W)}state`,
   ];
-  L.push(...ports, ');');
+  L.push(...finishPorts(ports), ');');
   L.push('');
   L.push('  // State codes');
   const eqStyle = opts.controller === 'equations';
@@ -159,7 +168,7 @@ function controllerModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleNa
       let closedByAlways = false;
       for (let t = 0; t < trs.length; t++) {
         const cond = conds[t];
-        const body = pathBody(syn, si, t, trs[t].target);
+        const body = pathBody(syn, si, t, trs[t].target, opts.dontCareAsX ?? false);
         const always = cond === null || (cond.k === 'const' && cond.value);
         if (cond !== null && cond.k === 'const' && !cond.value) continue; // never fires
         if (always) {
@@ -174,7 +183,7 @@ function controllerModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleNa
         opened = true;
       }
       if (!closedByAlways) {
-        const stay = pathBody(syn, si, null, si);
+        const stay = pathBody(syn, si, null, si, opts.dontCareAsX ?? false);
         const assigns = stay.filter((b) => !b.startsWith('state_next'));
         if (assigns.length) {
           L.push(opened ? '        else begin' : '        begin');
@@ -183,13 +192,18 @@ function controllerModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleNa
       }
       L.push('      end');
     });
-    L.push(`      default: state_next = ${stateParam(syn.states[syn.resetState])}; // unused code: back to the initial state`);
+    if (opts.dontCareAsX) L.push(`      default: begin state_next = {${W}{1'bx}}; ${ctrlOut.map((o) => `${o} = 1'bx;`).join(' ')} end`);
+    else L.push(`      default: state_next = ${stateParam(syn.states[syn.resetState])}; // unused code: back to the initial state`);
     L.push('    endcase');
     L.push('  end');
   } else {
     L.push(`  // Minimized sums of products from synthesis (${syn.form}).`);
     const bitOf = (v: string, i: number) => (W === 1 ? v : `${v}[${W - 1 - i}]`);
-    enc.bits.forEach((b, i) => L.push(`  wire ${b} = ${bitOf('state', i)};`));
+    const usedVar = (k: number) => syn.equations.some((eq) => eq.cover.some((c) => c[k] !== '-'));
+    enc.bits.forEach((b, i) => {
+      if (usedVar(i)) L.push(`  wire ${b} = ${bitOf('state', i)};`);
+      else L.push(`  // state bit ${b} is not needed by any equation (the other bits tell the states apart)`);
+    });
     const vars = syn.variables;
     for (const eq of syn.equations) {
       if (eq.kind === 'next-state') {
@@ -206,6 +220,18 @@ function controllerModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleNa
   return L.join('\n') + '\n';
 }
 
+/** Drops the comma after the last port declaration, wherever waivers or comments follow it. */
+function finishPorts(ports: string[]): string[] {
+  const lines = ports.join('\n').split('\n');
+  for (let i = lines.length - 1; i >= 0; i--) {
+    if (/^\s*(input|output)\b/.test(lines[i])) {
+      lines[i] = lines[i].replace(/,(\s*(\/\/.*)?)$/, '$1');
+      break;
+    }
+  }
+  return lines;
+}
+
 function describeOutput(o: Synthesis['controller']['outputs'][number]): string {
   if (o.role === 'output') return `design output ${o.drives}`;
   if (o.role === 'load') return `load enable of register ${o.drives}`;
@@ -213,12 +239,13 @@ function describeOutput(o: Synthesis['controller']['outputs'][number]): string {
 }
 
 /** Assignments for one path of the behavioral controller, from the transition table. */
-function pathBody(syn: Synthesis, state: number, transition: number | null, target: number): string[] {
+function pathBody(syn: Synthesis, state: number, transition: number | null, target: number, dontCareAsX: boolean): string[] {
   const row = syn.controller.table.find((r) => r.state === state && r.transition === transition);
   const out = [`state_next = ${stateParam(syn.states[target])};`];
   if (!row) return out;
   syn.controller.outputs.forEach((o, i) => {
     if (row.outputs[i] === '1') out.push(`${o.name} = 1'b1;`);
+    else if (row.outputs[i] === '-' && dontCareAsX) out.push(`${o.name} = 1'bx;`);
   });
   return out;
 }
@@ -227,6 +254,7 @@ function datapathModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleName
   const dp = syn.datapath;
   const L: string[] = [];
   const temps: string[] = [];
+  let tempCount = 0;
   const unitOf = new Map<string, string>();
   for (const u of dp.units) for (const op of u.operations) unitOf.set(op, u.name);
   const opByKey = new Map<string, string>();
@@ -241,7 +269,7 @@ function datapathModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleName
       return opByKey.get(k) ?? null;
     },
     temp: (text, width) => {
-      const name = `ts_t${temps.length}`;
+      const name = `ts_t${tempCount++}`;
       temps.push(`  wire ${range(width)}${name} = ${text};`);
       return name;
     },
@@ -334,8 +362,7 @@ function datapathModule(m: Machine, syn: Synthesis, opts: HdlOptions, moduleName
     ...dp.statusSignals.map((s) => `  output wire ${s.name},`),
     ...dp.outputs.map((o) => `  output wire ${range(o.type.width)}${o.output},`),
   ];
-  ports[ports.length - 1] = ports[ports.length - 1].replace(/,$/, '');
-  L.push(...ports, ');', '');
+  L.push(...finishPorts(ports), ');', '');
   if (partial.length) {
     L.push(`  // Some values are read only in part (${partial.join(', ')}): the unread bits are intended.`);
     L.push('  /* verilator lint_off UNUSEDSIGNAL */');
@@ -428,8 +455,7 @@ function topModule(m: Machine, syn: Synthesis, opts: HdlOptions, n: { top: strin
     }),
     ...m.outputs.map((o) => `  output wire ${range(o.type.width)}${o.name},`),
   ];
-  ports[ports.length - 1] = ports[ports.length - 1].replace(/,$/, '');
-  L.push(...ports, ');', '');
+  L.push(...finishPorts(ports), ');', '');
   L.push(`  // Reset synchronizer: asserts at once, releases on the ${SYNC_STAGES}nd clock edge after the pin does.`);
   L.push(`  wire ts_rst_pin = ${opts.reset === 'low' ? `~${n.reset}` : n.reset};`);
   L.push(`  reg  [${SYNC_STAGES - 1}:0] ts_rst_sync;`);
