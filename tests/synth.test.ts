@@ -174,6 +174,16 @@ describe('state encodings', () => {
       }
     });
 
+    it('above 32 states the full decode is skipped with a note, and the one-hot form still simulates like the IR', () => {
+      const n = 33;
+      const m = machineFromText(`machine ring\nin a : bit\nout y : bit = 0\n${Array.from({ length: n }, (_, i) => `state T${i}\n${i % 2 ? '  y = 1\n' : ''}  on a go T${(i + 1) % n}`).join('\n')}\n`);
+      const s = synth(m, 'onehot');
+      expect(s.fullDecode).toBeNull();
+      expect(s.notes.join(' ')).toMatch(/full decode skipped: 33 states/);
+      expect(simulateAgainstIr(m, s, s.equations, 300, 6)).toEqual([]);
+      expect(compareEncodings(m).rows.find((r) => r.encoding === 'onehot full decode')!.error).toMatch(/skipped/);
+    });
+
     it('one-hot form: each product term tests exactly one state flip-flop, set (the usual one-hot form)', () => {
       for (const { machine } of FIXTURES) {
         const s = synth(machine, 'onehot');

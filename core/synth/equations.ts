@@ -59,10 +59,12 @@ export function minimizeFunctions(fns: readonly ControllerFunction[], variables:
 export function oneHotForm(table: readonly TableRow[], encoding: Encoding, inputs: number, outputs: readonly ControllerOutput[], variables: readonly string[], exactLimit?: number): Equation[] {
   const states = encoding.width;
   const term = (state: number, cube: string): string => '-'.repeat(state) + '1' + '-'.repeat(states - state - 1) + cube;
+  const rowsOf: TableRow[][] = Array.from({ length: states }, () => []);
+  for (const r of table) rowsOf[r.state].push(r);
   const build = (target: string, kind: Equation['kind'], onRow: (r: TableRow) => boolean, dcRow: (r: TableRow) => boolean): Equation => {
     const cover: string[] = [];
     for (let s = 0; s < states; s++) {
-      const rows = table.filter((r) => r.state === s);
+      const rows = rowsOf[s];
       const on = rows.filter(onRow).map((r) => r.cube);
       if (on.length === 0) continue;
       const dc = rows.filter(dcRow).map((r) => r.cube);

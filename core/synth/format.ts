@@ -110,6 +110,7 @@ export function formatSynthesis(s: Synthesis): string {
     out.push('Full-decode alternative (every non-one-hot code a don\'t-care; the HDL uses the one-hot form above)');
     out.push(...equationLines(s.fullDecode));
   }
+  for (const n of s.notes) out.push(`Note: ${n}`);
   out.push('');
   out.push(`Cost: ${plural(s.cost.flipFlops, 'flip-flop')}, ${plural(s.cost.products, 'product term')}, ${plural(s.cost.literals, 'literal')}, ${plural(s.cost.gates2, 'two-input gate')}`);
   return out.join('\n') + '\n';
@@ -120,7 +121,7 @@ export function formatComparison(c: EncodingComparison): string {
   const all = [['encoding', 'flip-flops', 'products', 'literals', '2-input gates'], ...rows];
   const widths = all[0].map((_, i) => Math.max(...all.map((r) => r[i].length)));
   const lines = all.map((r) => '  ' + r.map((x, i) => (i === 0 ? x.padEnd(widths[i]) : x.padStart(widths[i]))).join('  '));
-  // Each message already names its encoding.
-  const notes = c.rows.filter((r) => !r.ok && r.encoding !== 'onehot full decode').map((r) => `  ${r.error}`);
+  // Each message already names its encoding; one-hot failures are not repeated for its full decode.
+  const notes = [...new Set(c.rows.filter((r) => !r.ok).map((r) => `  ${r.error}`))];
   return [`${c.machine}: state encodings compared (controller equations only)`, ...lines, ...(notes.length ? ['', ...notes] : [])].join('\n') + '\n';
 }

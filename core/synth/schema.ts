@@ -200,11 +200,13 @@ export const SynthesisSchema = z.object({
   variables: z.array(z.string()),
   /** The equations the HDL realizes: every next-state bit, then every controller output. */
   equations: z.array(EquationSchema),
-  /** One-hot only: the fully decoded alternative, minimized with every non-one-hot code as don't-care. */
+  /** One-hot only: the fully decoded alternative, minimized with every non-one-hot code as don't-care (null when skipped, see notes). */
   fullDecode: z.array(EquationSchema).nullable(),
   /** Which form the HDL uses. */
   form: z.enum(['sum-of-products', 'one-hot form']),
   cost: CostSchema.extend({ flipFlops: z.number().int().min(1) }),
+  /** Remarks for the reader: parts skipped and why. */
+  notes: z.array(z.string()),
 });
 export type Synthesis = z.infer<typeof SynthesisSchema>;
 
