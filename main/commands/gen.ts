@@ -8,17 +8,7 @@ import { synthesize } from '../../core/synth/index';
 import { generateHdl, type ControllerStyle, type ResetPolarity } from '../../core/hdl/modules';
 import { generateTestbench } from '../../core/hdl/testbench';
 import { simulate } from '../../core/model/trace';
-
-/** The probe generator lives in core/hdl/probe.ts; loaded on demand so plain generation never waits for it. */
-const PROBE_MODULE = '../../core/hdl/probe.ts';
-interface ProbeModule {
-  generateProbeFiles(
-    m: import('../../core/ir/schema').Machine,
-    syn: import('../../core/synth/schema').Synthesis,
-    names: import('../../core/hdl/modules').HdlNames,
-    opts: { clockHz: number; baud: number; reset: ResetPolarity },
-  ): { ok: true; files: { name: string; text: string }[]; notes: string[] } | { ok: false; error: string };
-}
+import { generateProbeFiles } from '../../core/probe/board';
 
 const USAGE = `usage: twinstep gen FILE.tsm --out DIR [--encoding binary|gray|onehot|custom] [--controller behavioral|equations]
                     [--reset low|high] [--testbench STIM.csv | --testbench-random N [--seed K]]
@@ -68,18 +58,11 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
     files.push(generateTestbench(m, hdl.names, stim.rows, trace));
   }
   if (opts.flags.has('probe')) {
-    let probe: ProbeModule;
-    try {
-      probe = (await import(PROBE_MODULE)) as ProbeModule;
-    } catch {
-      io.err('twinstep gen: the probe generator is not part of this build\n');
-      return EXIT.usage;
-    }
-    const clockHz = Number(opts.values.get('clock-hz') ?? m.clockHz ?? 12_000_000);
-    const baud = Number(opts.values.get('baud') ?? 115_200);
-    const r = probe.generateProbeFiles(m, syn.result, hdl.names, { clockHz, baud, reset });
+    const clockHz = opts.values.has('clock-hz') ? Number(opts.values.get('clock-hz')) : undefined;
+    const baud = opts.values.has('baud') ? Number(opts.values.get('baud')) : undefined;
+    const r = generateProbeFiles(m, syn.result, hdl.names, { clockHz, baud, reset });
     if (!r.ok) {
-      io.err(`twinstep gen: probe: ${r.error}\n`);
+      io.err(`twinstep gen: ${r.error}\n`);
       return EXIT.usage;
     }
     files.push(...r.files);

@@ -12,6 +12,8 @@ const SECTIONS: { file: string; fn: string }[] = [
   { file: 'synth.ts', fn: 'benchSynth' },
   { file: 'hdl.ts', fn: 'benchHdl' },
   { file: 'protocol.ts', fn: 'benchProtocol' },
+  { file: 'probe.ts', fn: 'benchProbe' },
+  { file: 'replay.ts', fn: 'benchReplay' },
 ];
 
 const only = process.argv.slice(2);
