@@ -9,6 +9,10 @@ export const COMMANDS: Record<string, { summary: string; load: () => Promise<{ r
   gen: { summary: 'generate Verilog (and the UART probe) for a design', load: () => loadCommand('gen') },
   demo: { summary: 'check and simulate the bundled demo design', load: () => loadCommand('demo') },
   serve: { summary: 'serve the app to a browser on 127.0.0.1', load: () => loadCommand('serve') },
+  monitor: { summary: 'compare a board with the model live over a serial port, optionally recording a capture', load: () => loadCommand('monitor') },
+  replay: { summary: 'compare a recorded capture with the model; VCD and replay testbench exports', load: () => loadCommand('replay') },
+  ports: { summary: 'list serial ports (USB vendor and product where known)', load: () => loadCommand('ports') },
+  emulate: { summary: 'emulate a board running the design with the probe on a serial device', load: () => loadCommand('emulate') },
 };
 
 /** Commands live in main/commands/NAME.ts; the path is computed so a command can be added without touching this file's types. */

@@ -7,7 +7,8 @@ import path from 'node:path';
 
 export function requireTool(name: string): void {
   const r = spawnSync('sh', ['-c', `command -v ${name}`]);
-  if (r.status !== 0) throw new Error(`outside tool '${name}' is not installed; on Debian: apt-get install ${name === 'vvp' ? 'iverilog' : name}`);
+  const pkg: Record<string, string> = { vvp: 'iverilog', vcd2fst: 'gtkwave', fst2vcd: 'gtkwave' };
+  if (r.status !== 0) throw new Error(`outside tool '${name}' is not installed; on Debian: apt-get install ${pkg[name] ?? name}`);
 }
 
 export function tempDir(prefix: string): string {
