@@ -191,7 +191,7 @@ describe('synthesis', () => {
     const reply = await dispatch(bare, { method: 'synth.run', params: { text: demo, encoding: 'binary' } });
     expect(reply).toMatchObject({ ok: false, error: { code: 'unavailable' } });
     const info = await dispatch(bare, { method: 'app.info' });
-    expect(info).toMatchObject({ ok: true, value: { features: { synth: false, simulate: true } } });
+    expect(info).toMatchObject({ ok: true, value: { features: { synth: false, simulate: true, hdl: false } } });
   });
 });
 
@@ -226,6 +226,6 @@ describe('files and notes', () => {
   });
 
   it('reports the shell and features', async () => {
-    expect(await ok('app.info')).toEqual({ name: 'Twinstep', version: 'test', shell: 'serve', features: { simulate: true, synth: true } });
+    expect(await ok('app.info')).toEqual({ name: 'Twinstep', version: 'test', shell: 'serve', features: { simulate: true, synth: true, hdl: true, jobs: true, folderExport: false } });
   });
 });

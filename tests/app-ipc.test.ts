@@ -1,10 +1,12 @@
 // The Electron IPC handler as a plain function: only the app's own page may call, and every
 // message still goes through zod validation in the shared dispatcher.
+import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { createIpcHandler, isAppPage } from '../main/electron/ipc';
-import { IPC_CHANNEL } from '../main/electron/channel';
+import { IPC_CHANNEL, IPC_EVENT_CHANNEL } from '../main/electron/channel';
+import { JobManager } from '../main/services/jobs';
 import { createHandlers } from '../main/services/handlers';
 
 const indexUrl = pathToFileURL('/opt/Twinstep/resources/app/dist/renderer/index.html').href;
@@ -36,6 +38,25 @@ describe('Electron IPC', () => {
     const reply = await handler(fromApp, message);
     expect(reply.ok).toBe(false);
     if (!reply.ok) expect(reply.error.code).toBe('bad-request');
+  });
+
+  it('pushes job events to the window that started the job, and stops its jobs when the window goes away', async () => {
+    const jobs = new JobManager();
+    const h = createIpcHandler(createHandlers({ shell: 'electron', version: 'test', demoDir: path.join(__dirname, '..', 'fixtures'), jobs }), indexUrl, jobs);
+    const sent: { channel: string; payload: { type: string; job: number } }[] = [];
+    let destroyed: (() => void) | null = null;
+    const sender = { id: 7, send: (channel: string, payload: unknown) => sent.push({ channel, payload: payload as { type: string; job: number } }), isDestroyed: () => false, once: (_e: 'destroyed', l: () => void) => (destroyed = l) };
+    const demo = readFileSync(path.join(__dirname, '..', 'fixtures', 'tank_dosing.tsm'), 'utf8');
+    const bench = { kind: 'bench', text: demo, encoding: 'binary', link: { kind: 'emulator', faults: [], seed: 1, baud: 115200 }, record: false, hostInputs: null, safetyAcknowledged: true };
+    const reply = await h({ ...fromApp, sender }, { method: 'job.start', params: bench });
+    expect(reply).toMatchObject({ ok: true, value: { job: expect.any(Number) } });
+    await expect.poll(() => sent.some((s) => s.payload.type === 'session-delta'), { timeout: 10_000 }).toBe(true);
+    expect(sent.every((s) => s.channel === IPC_EVENT_CHANNEL)).toBe(true);
+    expect(jobs.active).toBe(1);
+    destroyed!();
+    await expect.poll(() => jobs.active, { timeout: 5_000 }).toBe(0);
+    // Without a sender (no window to push to) a job cannot start.
+    expect(await h(fromApp, { method: 'job.start', params: bench })).toMatchObject({ ok: false, error: { code: 'unavailable' } });
   });
 
   it('matches the page by scheme, host and path only', () => {

@@ -1,16 +1,19 @@
 // Serve mode's guards, tested over real sockets on 127.0.0.1: the per-run token on the page, the
 // API and the WebSocket; Host and Origin checks; the CSP header; and a good call that works.
-import { mkdtempSync, mkdirSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import http from 'node:http';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import WebSocket from 'ws';
 import { parsePort, run as serveCommand } from '../main/commands/serve';
+import { JobEventSchema, type JobEvent } from '../core/services/api';
 import { createHandlers } from '../main/services/handlers';
+import { JobManager } from '../main/services/jobs';
 import { startServer, type RunningServer } from '../main/services/server';
 
 let server: RunningServer;
+const jobs = new JobManager();
 const TOKEN = 'test-token-0123456789abcdef';
 
 beforeAll(async () => {
@@ -19,8 +22,8 @@ beforeAll(async () => {
   writeFileSync(path.join(dir, 'index.html'), '<!doctype html><title>t</title>');
   writeFileSync(path.join(dir, 'assets', 'app.js'), 'console.log(1)');
   writeFileSync(path.join(dir, '..', 'twinstep-secret.txt'), 'outside');
-  const handlers = createHandlers({ shell: 'serve', version: 'test', demoDir: path.join(__dirname, '..', 'fixtures') });
-  server = await startServer({ handlers, staticDir: dir, token: TOKEN });
+  const handlers = createHandlers({ shell: 'serve', version: 'test', demoDir: path.join(__dirname, '..', 'fixtures'), captureDir: path.join(dir, 'captures'), jobs });
+  server = await startServer({ handlers, staticDir: dir, token: TOKEN, jobs });
 });
 afterAll(() => server.close());
 
@@ -194,6 +197,57 @@ describe('the WebSocket', () => {
     const closed = new Promise<number>((r) => ws.once('close', (code) => r(code)));
     ws.send('this is not json');
     expect(await closed).toBe(1008);
+  });
+});
+
+describe('job events over the WebSocket', () => {
+  const demo = readFileSync(path.join(__dirname, '..', 'fixtures', 'tank_dosing.tsm'), 'utf8');
+  /** Opens a socket that collects replies by id and pushed events in order. */
+  async function open() {
+    const ws = new WebSocket(`ws://127.0.0.1:${server.port}/ws?t=${TOKEN}`, { origin: `http://127.0.0.1:${server.port}` });
+    await new Promise((r) => ws.once('open', r));
+    const replies = new Map<number, { ok: boolean; value?: { job: number } }>();
+    const pushed: JobEvent[] = [];
+    ws.on('message', (data) => {
+      const f = JSON.parse(data.toString());
+      if (f.push) pushed.push(JobEventSchema.parse(f.push));
+      else replies.set(f.id, f.reply);
+    });
+    const reply = async (id: number) => {
+      await expect.poll(() => replies.has(id), { timeout: 10_000 }).toBe(true);
+      return replies.get(id)!;
+    };
+    return { ws, pushed, reply };
+  }
+
+  it('pushes the progress and chunks of a simulation to the socket that started it, and only to it', async () => {
+    const a = await open();
+    const b = await open();
+    a.ws.send(JSON.stringify({ id: 1, call: { method: 'job.start', params: { kind: 'simulate', text: demo, stimulus: { kind: 'random', cycles: 300_000, seed: 2 } } } }));
+    const r = await a.reply(1);
+    expect(r.ok).toBe(true);
+    await expect.poll(() => a.pushed.some((e) => e.type === 'done'), { timeout: 20_000 }).toBe(true);
+    expect(a.pushed.every((e) => e.job === r.value!.job)).toBe(true);
+    expect(a.pushed.filter((e) => e.type === 'sim-chunk').length).toBe(6);
+    expect(a.pushed.filter((e) => e.type === 'progress').map((e) => e.type === 'progress' && e.done)).toEqual([50_000, 100_000, 150_000, 200_000, 250_000, 300_000]);
+    expect(b.pushed).toEqual([]);
+    a.ws.close();
+    b.ws.close();
+  });
+
+  it('stops a bench session when its socket closes', async () => {
+    const a = await open();
+    a.ws.send(
+      JSON.stringify({
+        id: 1,
+        call: { method: 'job.start', params: { kind: 'bench', text: demo, encoding: 'binary', link: { kind: 'emulator', faults: [], seed: 1, baud: 115200 }, record: false, hostInputs: null, safetyAcknowledged: true } },
+      }),
+    );
+    expect((await a.reply(1)).ok).toBe(true);
+    await expect.poll(() => a.pushed.some((e) => e.type === 'session-delta' && e.counters.cycleFrames > 0), { timeout: 10_000 }).toBe(true);
+    expect(jobs.active).toBe(1);
+    a.ws.close();
+    await expect.poll(() => jobs.active, { timeout: 5_000 }).toBe(0);
   });
 });
 

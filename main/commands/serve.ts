@@ -2,7 +2,9 @@
 // (with this run's token) to open. Builds the renderer first when its sources are newer than the build.
 import { EXIT, parseOptions, type CliIO } from '../cli-io';
 import { createHandlers } from '../services/handlers';
-import { APP_VERSION, appRoot, demoDir, rendererDist } from '../services/paths';
+import { JobManager } from '../services/jobs';
+import { APP_VERSION, appRoot, captureDir, demoDir, rendererDist } from '../services/paths';
+import { loadSerial } from '../services/serial-adapter';
 import { ensureRendererBuilt } from '../services/renderer-build';
 import { startServer, type RunningServer } from '../services/server';
 
@@ -21,12 +23,18 @@ export function parsePort(text: string | undefined): { port: number } | { proble
   return { port: Number(text) };
 }
 
+export interface ServeExtras {
+  /** Capture folder; default TWINSTEP_CAPTURES or ~/Twinstep/captures. */
+  captureDir?: string;
+}
+
 /** Starts serve mode for other entry points (npm start); the caller owns closing it. */
-export async function startServe(port: number, io: Pick<CliIO, 'err'>): Promise<RunningServer> {
+export async function startServe(port: number, io: Pick<CliIO, 'err'>, extras: ServeExtras = {}): Promise<RunningServer> {
   const root = appRoot();
-  const handlers = createHandlers({ shell: 'serve', version: APP_VERSION, demoDir: demoDir(root) });
+  const jobs = new JobManager();
+  const handlers = createHandlers({ shell: 'serve', version: APP_VERSION, demoDir: demoDir(root), captureDir: extras.captureDir ?? captureDir(), jobs, serial: await loadSerial() });
   // Bind first, so a taken port is reported at once rather than after a build.
-  const server = await startServer({ handlers, staticDir: rendererDist(root), port });
+  const server = await startServer({ handlers, staticDir: rendererDist(root), port, jobs });
   try {
     await ensureRendererBuilt(root, io.err);
   } catch (e) {

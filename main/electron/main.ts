@@ -1,11 +1,13 @@
 // Electron main process: one window on the bundled renderer, locked down (context isolation,
 // sandbox, no Node in the page, strict CSP, no navigation or new windows), and the service API over one IPC channel.
-import { app, BrowserWindow, ipcMain, session, type WebContents } from 'electron';
+import { app, BrowserWindow, dialog, ipcMain, session, type WebContents } from 'electron';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { contentSecurityPolicy } from '../services/csp';
 import { createHandlers } from '../services/handlers';
-import { APP_VERSION, appRoot, demoDir, rendererDist } from '../services/paths';
+import { JobManager } from '../services/jobs';
+import { APP_VERSION, appRoot, captureDir, demoDir, rendererDist } from '../services/paths';
+import { loadSerial } from '../services/serial-adapter';
 import { IPC_CHANNEL } from './channel';
 import { createIpcHandler } from './ipc';
 import { windowOptions } from './window';
@@ -25,18 +27,27 @@ async function createWindow(): Promise<void> {
   const root = appRoot();
   const indexFile = path.join(rendererDist(root), 'index.html');
   const indexUrl = pathToFileURL(indexFile).href;
-  const handlers = createHandlers({ shell: 'electron', version: APP_VERSION, demoDir: demoDir(root) });
+  const jobs = new JobManager();
+  let win: BrowserWindow | null = null;
+  const pickFolder = async () => {
+    const options = { title: 'Export the generated files to a folder', properties: ['openDirectory', 'createDirectory'] as ('openDirectory' | 'createDirectory')[] };
+    const r = win ? await dialog.showOpenDialog(win, options) : await dialog.showOpenDialog(options);
+    return r.canceled || r.filePaths.length === 0 ? null : r.filePaths[0];
+  };
+  const handlers = createHandlers({ shell: 'electron', version: APP_VERSION, demoDir: demoDir(root), captureDir: captureDir(), pickFolder, jobs, serial: await loadSerial() });
 
-  session.defaultSession.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  // Every permission is refused except writing text to the clipboard (the HDL screen's Copy button).
+  session.defaultSession.setPermissionRequestHandler((_wc, permission, callback) => callback(permission === 'clipboard-sanitized-write'));
   session.defaultSession.webRequest.onHeadersReceived((details, callback) => {
     callback({ responseHeaders: { ...details.responseHeaders, 'Content-Security-Policy': [contentSecurityPolicy()] } });
   });
-  ipcMain.handle(IPC_CHANNEL, createIpcHandler(handlers, indexUrl));
+  ipcMain.handle(IPC_CHANNEL, createIpcHandler(handlers, indexUrl, jobs));
 
-  const win = new BrowserWindow(windowOptions(path.join(here, 'preload.cjs')));
-  lockDown(win.webContents, indexUrl);
-  win.once('ready-to-show', () => win.show());
-  await win.loadFile(indexFile);
+  const w = new BrowserWindow(windowOptions(path.join(here, 'preload.cjs')));
+  win = w;
+  lockDown(w.webContents, indexUrl);
+  w.once('ready-to-show', () => w.show());
+  await w.loadFile(indexFile);
 }
 
 app.on('web-contents-created', (_e, contents) => contents.setWindowOpenHandler(() => ({ action: 'deny' })));

@@ -59,7 +59,16 @@ export async function ensureRendererBuilt(root: string, log: (line: string) => v
     if (!(await rendererIsStale(root))) return false;
     log('building the renderer (vite)...\n');
     const { build } = await import('vite');
-    await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+    // A build started from a test runner inherits NODE_ENV=test, which would give React's development
+    // build; the app always ships the production one.
+    const before = process.env.NODE_ENV;
+    process.env.NODE_ENV = 'production';
+    try {
+      await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn', mode: 'production' });
+    } finally {
+      if (before === undefined) delete process.env.NODE_ENV;
+      else process.env.NODE_ENV = before;
+    }
     return true;
   });
 }

@@ -10,6 +10,7 @@ import { WebSocketServer, type WebSocket } from 'ws';
 import { WsCallSchema } from '../../core/services/api';
 import { contentSecurityPolicy } from './csp';
 import { dispatch, type Handlers } from './handlers';
+import type { Caller, JobManager } from './jobs';
 
 export interface ServeOptions {
   handlers: Handlers;
@@ -19,6 +20,8 @@ export interface ServeOptions {
   port?: number;
   /** Fixed token for tests; a fresh random one otherwise. */
   token?: string;
+  /** The job manager the handlers use; jobs of a WebSocket that closes are cancelled. */
+  jobs?: JobManager;
 }
 
 export interface RunningServer {
@@ -174,7 +177,17 @@ export async function startServer(opts: ServeOptions): Promise<RunningServer> {
     wss.handleUpgrade(req, socket, head, (ws) => wss.emit('connection', ws, req));
   });
 
+  let connections = 0;
   wss.on('connection', (ws: WebSocket) => {
+    // Each WebSocket is one caller: job events go back over it as `{ push }` frames.
+    const caller: Caller = {
+      id: `ws-${++connections}`,
+      emit: (event) => {
+        if (ws.readyState === ws.OPEN) ws.send(JSON.stringify({ push: event }));
+      },
+      backlog: () => ws.bufferedAmount,
+    };
+    ws.on('close', () => opts.jobs?.dropCaller(caller));
     ws.on('message', (data, isBinary) => {
       let frame: unknown;
       try {
@@ -187,7 +200,7 @@ export async function startServer(opts: ServeOptions): Promise<RunningServer> {
         ws.close(1008, 'malformed frame: expected {"id": N, "call": {...}}');
         return;
       }
-      void dispatch(opts.handlers, call.data.call).then((reply) => {
+      void dispatch(opts.handlers, call.data.call, caller).then((reply) => {
         if (ws.readyState === ws.OPEN) ws.send(JSON.stringify({ id: call.data.id, reply }));
       });
     });

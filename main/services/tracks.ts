@@ -1,5 +1,5 @@
-// Folds a cycle trace into waveform tracks: one change list per signal, so quiet signals cost almost
-// nothing to send and the waveform view can find the visible cycles by binary search.
+// Folds a model trace (bigint rows) into waveform tracks: the plain reference for the change lists that
+// core/services/fastsim.ts builds on the fly, which the tests hold the fast path to.
 import type { Machine } from '../../core/ir/schema';
 import type { TraceRow } from '../../core/model/trace';
 import type { Track } from '../../core/services/api';

@@ -1,10 +1,15 @@
 // Picks how the renderer reaches the service API: the Electron preload bridge when present, else
 // the serve-mode WebSocket (falling back to HTTP POST) with this run's token taken from the page URL.
+// The first two also carry job events pushed by the service; plain HTTP cannot.
 import type { ApiReply, TwinstepBridge } from '../../core/services/api';
 
 export interface Transport {
   kind: 'electron' | 'websocket' | 'http';
   send(request: unknown): Promise<unknown>;
+  /** Raw pushed events (validated by the client); returns an unsubscribe function. */
+  listen(listener: (event: unknown) => void): () => void;
+  /** Whether pushed events can arrive (false once the WebSocket could not open). */
+  canPush(): Promise<boolean>;
 }
 
 declare global {
@@ -22,13 +27,16 @@ function httpTransport(token: string): Transport {
       if (!type.startsWith('application/json')) return { ok: false, error: { code: 'internal', message: `the server answered ${res.status}: ${(await res.text()).trim()}` } };
       return res.json();
     },
+    listen: () => () => {},
+    canPush: async () => false,
   };
 }
 
-/** One WebSocket for all calls; replies are matched by id. Falls back to HTTP if it cannot open. */
+/** One WebSocket for all calls; replies are matched by id, pushes go to listeners. Falls back to HTTP if it cannot open. */
 function socketTransport(token: string): Transport {
   const http = httpTransport(token);
   const pending = new Map<number, (reply: unknown) => void>();
+  const listeners = new Set<(event: unknown) => void>();
   let nextId = 1;
   let socket: Promise<WebSocket | null> | null = null;
 
@@ -48,10 +56,14 @@ function socketTransport(token: string): Transport {
         socket = null;
       };
       ws.onmessage = (ev) => {
-        let frame: { id?: unknown; reply?: unknown };
+        let frame: { id?: unknown; reply?: unknown; push?: unknown };
         try {
           frame = JSON.parse(String(ev.data));
         } catch {
+          return;
+        }
+        if (frame.push !== undefined) {
+          for (const l of listeners) l(frame.push);
           return;
         }
         const done = typeof frame.id === 'number' ? pending.get(frame.id) : undefined;
@@ -73,12 +85,27 @@ function socketTransport(token: string): Transport {
         ws.send(JSON.stringify({ id, call: request }));
       });
     },
+    listen(listener) {
+      listeners.add(listener);
+      return () => void listeners.delete(listener);
+    },
+    async canPush() {
+      const ws = await open();
+      return ws !== null && ws.readyState === WebSocket.OPEN;
+    },
   };
 }
 
 export function pickTransport(): Transport {
   const bridge = window.twinstep;
-  if (bridge && typeof bridge.call === 'function') return { kind: 'electron', send: (r) => bridge.call(r) as Promise<ApiReply<unknown>> };
+  if (bridge && typeof bridge.call === 'function') {
+    return {
+      kind: 'electron',
+      send: (r) => bridge.call(r) as Promise<ApiReply<unknown>>,
+      listen: (l) => (typeof bridge.onEvent === 'function' ? bridge.onEvent(l) : () => {}),
+      canPush: async () => typeof bridge.onEvent === 'function',
+    };
+  }
   const token = new URLSearchParams(location.search).get('t') ?? '';
   return socketTransport(token);
 }

@@ -1,16 +1,19 @@
 // The app frame: header with the design's identity and the bench-safety button, a left rail of
 // screens, and the document state (design text and its latest check) that every screen shares.
 import { useCallback, useEffect, useRef, useState } from 'react';
-import type { CheckResultView, ResultOf } from '../../core/services/api';
-import { call, transportKind } from '../api/client';
-import { BenchScreen } from '../bench/BenchScreen';
+import type { CheckResultView, JobStartRequest, ResultOf } from '../../core/services/api';
+import { call, startJob, transportKind, type JobHandle } from '../api/client';
+import { BenchScreen, DEFAULT_BENCH, type BenchSettings } from '../bench/BenchScreen';
 import { DesignScreen } from '../design/DesignScreen';
+import { DEFAULT_HDL, HdlScreen, type HdlSettings } from '../hdl/HdlScreen';
 import { MachineScreen } from '../machine/MachineScreen';
 import { SafetyPanel, safetyAcknowledged } from '../safety/SafetyPanel';
+import { SessionScreen } from '../session/SessionScreen';
+import { applySessionEvent, emptySession, type SessionData } from '../session/store';
 import { SimulateScreen, type SimState } from '../sim/SimulateScreen';
 import { Icon, type IconName } from './Icon';
 
-export type Screen = 'design' | 'machine' | 'simulate' | 'bench';
+export type Screen = 'design' | 'machine' | 'hdl' | 'simulate' | 'bench' | 'session';
 
 export interface DesignDoc {
   file: string;
@@ -22,8 +25,10 @@ export interface DesignDoc {
 const SCREENS: { id: Screen; label: string; icon: IconName }[] = [
   { id: 'design', label: 'Design', icon: 'design' },
   { id: 'machine', label: 'Machine', icon: 'machine' },
+  { id: 'hdl', label: 'HDL', icon: 'hdl' },
   { id: 'simulate', label: 'Simulate', icon: 'wave' },
   { id: 'bench', label: 'Bench', icon: 'bench' },
+  { id: 'session', label: 'Session', icon: 'session' },
 ];
 
 const CHECK_DELAY_MS = 250;
@@ -37,8 +42,45 @@ export function App() {
   const [problem, setProblem] = useState<string | null>(null);
   const [info, setInfo] = useState<ResultOf<'app.info'> | null>(null);
   const [safetyOpen, setSafetyOpen] = useState(false);
-  const [sim, setSim] = useState<SimState>({ source: 'random', cycles: 2000, seed: 7, csv: '', radix: 'dec', result: null, running: false, error: null });
+  const [sim, setSim] = useState<SimState>({ source: 'random', cycles: 2000, seed: 7, csv: '', radix: 'dec', result: null, running: false, error: null, progress: null, job: null, runId: 0 });
+  const [hdl, setHdl] = useState<HdlSettings>(DEFAULT_HDL);
+  const [bench, setBench] = useState<BenchSettings>(DEFAULT_BENCH);
+  const [session, setSession] = useState<SessionData | null>(null);
+  const sessionJob = useRef<JobHandle | null>(null);
+  const sessionData = useRef<SessionData | null>(null);
+  const sessionGen = useRef(0);
   const latest = useRef(0);
+
+  /** Starts a bench session or a replay; returns a message when it could not start. */
+  const startSession = useCallback(async (req: JobStartRequest): Promise<string | null> => {
+    await sessionJob.current?.cancel();
+    // Events of an older session that are still in flight must not land in the new one.
+    const gen = ++sessionGen.current;
+    const source = req.kind === 'replay' ? 'replay' : req.kind === 'bench' && req.link.kind === 'serial' ? 'serial' : 'emulator';
+    const r = await startJob(req, (e) => {
+      if (sessionGen.current !== gen) return;
+      // Folded here, once per event (the arrays grow in place), not inside a state updater that may rerun.
+      const base = sessionData.current && sessionData.current.job === e.job ? sessionData.current : emptySession(e.job, source, 'starting…');
+      sessionData.current = applySessionEvent(base, e);
+      setSession(sessionData.current);
+    });
+    if (!r.ok) return r.error.message;
+    sessionJob.current = r.value;
+    if (sessionData.current?.job !== r.value.job) {
+      sessionData.current = emptySession(r.value.job, source, 'starting…');
+      setSession(sessionData.current);
+    }
+    setScreen('session');
+    return null;
+  }, []);
+  const stopSession = useCallback(() => void sessionJob.current?.cancel(), []);
+  const boardCommand = useCallback(async (cmd: 'run' | 'halt' | 'reset' | { step: number }) => {
+    const job = sessionJob.current?.job;
+    if (job === undefined) return;
+    const command = typeof cmd === 'string' ? { kind: cmd } : { kind: 'step' as const, cycles: cmd.step };
+    const r = await call('bench.command', { job, command });
+    if (!r.ok) setProblem(r.error.message);
+  }, []);
 
   const openDemo = useCallback(async (id: string) => {
     const r = await call('files.readDemo', { id });
@@ -127,7 +169,22 @@ export function App() {
         {screen === 'design' && <DesignScreen doc={doc} check={check} onEdit={editText} onOpen={openFile} onOpenDemo={openDemo} />}
         {screen === 'machine' && <MachineScreen doc={doc} check={check} synthAvailable={info?.features.synth ?? false} />}
         {screen === 'simulate' && <SimulateScreen doc={doc} check={check} sim={sim} setSim={setSim} />}
-        {screen === 'bench' && <BenchScreen onShowSafety={() => setSafetyOpen(true)} />}
+        {screen === 'hdl' && <HdlScreen doc={doc} check={check} settings={hdl} setSettings={(p) => setHdl((x) => ({ ...x, ...p }))} folderExport={info?.features.folderExport ?? false} />}
+        {screen === 'bench' && (
+          <BenchScreen
+            doc={doc}
+            m={check?.machine ?? null}
+            settings={bench}
+            setSettings={(p) => setBench((x) => ({ ...x, ...p }))}
+            session={session}
+            onStart={startSession}
+            onStop={stopSession}
+            onCommand={boardCommand}
+            onShowSafety={() => setSafetyOpen(true)}
+            onOpenSession={() => setScreen('session')}
+          />
+        )}
+        {screen === 'session' && <SessionScreen session={session} check={check} onCommand={boardCommand} onStop={stopSession} onOpenBench={() => goTo('bench')} />}
       </main>
       {safetyOpen && <SafetyPanel onClose={() => setSafetyOpen(false)} />}
     </div>

@@ -16,6 +16,8 @@ export const PALETTE = {
   ok: '#6fd08c',
   bus: '#5cc8c0',
   busy: '#3b4a57',
+  /** The model's expected values beside the board's, in a session. */
+  model: '#d7a6ff',
 };
 
 /** Distinct fills for states in the waveform, cycled by state index. */

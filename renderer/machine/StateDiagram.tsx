@@ -8,7 +8,11 @@ function pathOf(points: { x: number; y: number }[]): string {
   return points.map((p, i) => `${i ? 'L' : 'M'}${p.x.toFixed(1)},${p.y.toFixed(1)}`).join(' ');
 }
 
-export function StateDiagram({ diagram, highlight }: { diagram: Diagram; highlight?: number | null }) {
+/**
+ * `actual` and `expected` mark the board's state and the model's expected state of a divergence (the same
+ * state when only a register or output differs); `highlight` marks one state plainly.
+ */
+export function StateDiagram({ diagram, highlight, actual, expected }: { diagram: Diagram; highlight?: number | null; actual?: number | null; expected?: number | null }) {
   const pad = 28;
   const w = diagram.width + pad;
   const h = diagram.height;
@@ -39,9 +43,19 @@ export function StateDiagram({ diagram, highlight }: { diagram: Diagram; highlig
           ),
       )}
       {diagram.nodes.map((n) => (
-        <g key={n.id} className={`state-node ${highlight === n.index ? 'hot' : ''}`}>
+        <g key={n.id} className={`state-node ${highlight === n.index ? 'hot' : ''} ${actual === n.index ? 'actual' : ''} ${expected === n.index ? 'expected' : ''}`} data-state={n.name}>
           {n.initial && <path d={`M${n.x - 24},${n.y + 13} L${n.x - 1},${n.y + 13}`} stroke={PALETTE.accent} strokeWidth={1.6} markerEnd="url(#arrow-entry)" />}
-          <rect x={n.x} y={n.y} width={n.w} height={n.h} rx={8} fill={PALETTE.panel2} stroke={n.initial ? PALETTE.accent : PALETTE.state} strokeWidth={n.initial ? 2 : 1.4} />
+          {expected === n.index && <rect x={n.x - 5} y={n.y - 5} width={n.w + 10} height={n.h + 10} rx={11} fill="none" stroke={PALETTE.model} strokeWidth={2} strokeDasharray="5 3" />}
+          <rect
+            x={n.x}
+            y={n.y}
+            width={n.w}
+            height={n.h}
+            rx={8}
+            fill={actual === n.index ? 'rgba(255,107,107,0.16)' : PALETTE.panel2}
+            stroke={actual === n.index ? PALETTE.error : n.initial ? PALETTE.accent : PALETTE.state}
+            strokeWidth={actual === n.index || n.initial ? 2 : 1.4}
+          />
           <text x={n.x + n.w / 2} y={n.y + 18} textAnchor="middle" fill={PALETTE.state} fontSize={13} fontWeight={700}>
             {n.name}
           </text>

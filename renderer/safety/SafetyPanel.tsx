@@ -5,20 +5,24 @@ import type { SafetyNotes } from '../../core/services/api';
 import { call } from '../api/client';
 
 const ACK_KEY = 'twinstep.safety.acknowledged';
+/** Kept per window session (sessionStorage), so the notes come up again before the first connect of every session. */
+let acknowledgedHere = false;
 
 export function safetyAcknowledged(): boolean {
+  if (acknowledgedHere) return true;
   try {
-    return localStorage.getItem(ACK_KEY) === '1';
+    return sessionStorage.getItem(ACK_KEY) === '1';
   } catch {
     return false;
   }
 }
 
 function acknowledge(): void {
+  acknowledgedHere = true;
   try {
-    localStorage.setItem(ACK_KEY, '1');
+    sessionStorage.setItem(ACK_KEY, '1');
   } catch {
-    // Storage may be unavailable; the panel will simply show again before the next connect.
+    // Storage may be unavailable; this window still remembers it until it is closed.
   }
 }
 
@@ -49,7 +53,7 @@ export function useSafetyNotes(): { notes: SafetyNotes | null; problem: string |
   return { notes, problem };
 }
 
-export function SafetyPanel({ onClose }: { onClose(): void }) {
+export function SafetyPanel({ onClose, onAcknowledge }: { onClose(): void; onAcknowledge?(): void }) {
   const { notes, problem } = useSafetyNotes();
   const closeButton = useRef<HTMLButtonElement>(null);
   useEffect(() => {
@@ -69,6 +73,7 @@ export function SafetyPanel({ onClose }: { onClose(): void }) {
             className="primary"
             onClick={() => {
               acknowledge();
+              onAcknowledge?.();
               onClose();
             }}
           >

@@ -1,10 +1,13 @@
 // The Simulate screen: runs the golden model on seeded random stimulus or a pasted CSV, and shows
-// the trace as a waveform. Stimulus problems come back as diagnostics naming the row and column.
+// the trace as a waveform. Long runs stream in chunks with progress and can be cancelled; stimulus
+// problems come back as diagnostics naming the row and column.
 import type { Dispatch, SetStateAction } from 'react';
-import { MAX_SIM_CYCLES, type CheckResultView, type DiagnosticView, type SimulationView } from '../../core/services/api';
-import { call } from '../api/client';
+import { MAX_SIM_CYCLES, type CheckResultView, type DiagnosticView, type JobEvent, type SimulationView } from '../../core/services/api';
+import { call, jobsAvailable, startJob, type JobHandle } from '../api/client';
 import type { DesignDoc } from '../app/App';
+import { Progress } from '../app/Progress';
 import { WaveCanvas, type Radix } from './WaveCanvas';
+import { appendChunk } from './waveform';
 
 export interface SimState {
   source: 'random' | 'csv';
@@ -15,6 +18,43 @@ export interface SimState {
   result: SimulationView | null;
   running: boolean;
   error: string | null;
+  /** Cycles done of the running job. */
+  progress: { done: number; total: number } | null;
+  job: JobHandle | null;
+  /** Counts runs, so the waveform resets its view for a new run but not for each chunk of one. */
+  runId: number;
+}
+
+/**
+ * Grows the run's waveform from a simulation event, in place (outside React's state updaters, which may
+ * run more than once): the arrays grow, and a new wrapper object tells the canvas to redraw.
+ */
+export function foldSimData(acc: SimulationView | null, e: JobEvent): SimulationView | null {
+  if (e.type === 'sim-start') return { cycles: 0, stateNames: e.stateNames, tracks: e.tracks.map((t) => ({ ...t, at: [], values: [] })), diagnostics: [], stimulusSource: null };
+  if (e.type === 'sim-chunk' && acc) {
+    appendChunk(acc.tracks, e.tracks);
+    return { ...acc, cycles: e.cycles };
+  }
+  return acc;
+}
+
+/** The screen state after a simulation event; `data` is the waveform as folded so far. Pure. */
+export function applySimEvent(s: SimState, e: JobEvent, data: SimulationView | null): SimState {
+  switch (e.type) {
+    case 'sim-start':
+    case 'sim-chunk':
+      return { ...s, result: data };
+    case 'progress':
+      return { ...s, progress: { done: e.done, total: e.total ?? e.done } };
+    case 'failed':
+      return { ...s, running: false, job: null, progress: null, result: e.diagnostics.length ? { cycles: 0, stateNames: [], tracks: [], diagnostics: e.diagnostics, stimulusSource: 'stimulus' } : s.result, error: e.diagnostics.length ? null : e.error };
+    case 'cancelled':
+      return { ...s, running: false, job: null, progress: null, error: `cancelled after ${s.result?.cycles ?? 0} cycles${s.result?.cycles ? '; the waveform shows those' : ''}` };
+    case 'done':
+      return { ...s, running: false, job: null, progress: null };
+    default:
+      return s;
+  }
 }
 
 interface Props {
@@ -52,8 +92,21 @@ export function SimulateScreen({ doc, check, sim, setSim }: Props) {
 
   const run = async () => {
     if (!doc) return;
-    set({ running: true, error: null });
+    set({ running: true, error: null, progress: null, runId: sim.runId + 1 });
     const stimulus = sim.source === 'random' ? { kind: 'random' as const, cycles: sim.cycles, seed: sim.seed } : { kind: 'csv' as const, csv: sim.csv };
+    if (await jobsAvailable()) {
+      setSim((s) => ({ ...s, result: null }));
+      let data: SimulationView | null = null;
+      const r = await startJob({ kind: 'simulate', text: doc.text, file: doc.file, stimulus }, (e) => {
+        data = foldSimData(data, e);
+        const now = data;
+        setSim((s) => applySimEvent(s, e, now));
+      });
+      if (r.ok) set({ job: r.value });
+      else set({ running: false, error: r.error.message });
+      return;
+    }
+    // Without a push channel (plain HTTP) the whole run comes back in one reply.
     const r = await call('design.simulate', { text: doc.text, file: doc.file, stimulus });
     setSim((s) => ({ ...s, running: false, result: r.ok ? r.value : s.result, error: r.ok ? null : r.error.message }));
   };
@@ -88,6 +141,12 @@ export function SimulateScreen({ doc, check, sim, setSim }: Props) {
         <button className="primary" onClick={run} disabled={sim.running || (sim.source === 'random' && !cyclesOk)} data-testid="sim-run">
           {sim.running ? 'Running…' : 'Run model'}
         </button>
+        {sim.running && sim.job && (
+          <button onClick={() => void sim.job?.cancel()} data-testid="sim-cancel">
+            Cancel
+          </button>
+        )}
+        {sim.progress && <Progress done={sim.progress.done} total={sim.progress.total} unit="cycles" />}
         <label className="field">
           <span>radix</span>
           <select value={sim.radix} onChange={(e) => set({ radix: e.target.value as Radix })} data-testid="sim-radix">
@@ -109,7 +168,7 @@ export function SimulateScreen({ doc, check, sim, setSim }: Props) {
       {sim.error && <div className="banner error">{sim.error}</div>}
       {res && res.diagnostics.length > 0 && <DiagnosticList items={res.diagnostics} what={res.stimulusSource === 'stimulus' ? 'stimulus' : 'design'} />}
       {res && res.cycles > 0 ? (
-        <WaveCanvas sim={res} radix={sim.radix} />
+        <WaveCanvas sim={res} radix={sim.radix} resetKey={sim.runId} />
       ) : (
         !res && <div className="screen-empty small">Run the model to see its waveform: inputs, state, registers and outputs, cycle by cycle.</div>
       )}

@@ -94,3 +94,80 @@ export function tickStep(cyclesPerPx: number, minPx = 70): number {
   for (const m of [1, 2, 5, 10]) if (m * exp >= raw) return Math.max(1, m * exp);
   return Math.max(1, 10 * exp);
 }
+
+/**
+ * A view with `cycle` in the middle. Zoomed out further than `readable` cycles per pixel, it zooms in to
+ * that, so the values around the cycle can be read; otherwise the zoom is kept.
+ */
+export function centreOn(view: WaveView, cycle: number, plotWidth: number, total: number, readable = 1 / 8): WaveView {
+  const cyclesPerPx = Math.min(view.cyclesPerPx, readable);
+  return clampView({ start: cycle + 0.5 - (plotWidth * cyclesPerPx) / 2, cyclesPerPx }, plotWidth, total);
+}
+
+/** The cycle at the middle of the plot. */
+export function centreCycle(view: WaveView, plotWidth: number): number {
+  return Math.floor(view.start + (plotWidth * view.cyclesPerPx) / 2);
+}
+
+/**
+ * Spans of [from, to) where two change lists hold different values, found by walking both lists together.
+ * Stops after `maxSteps` changes (a zoomed-out view of a busy trace), returning what it found so far.
+ */
+export function diffSpans(a: { at: readonly number[]; values: readonly string[] }, b: { at: readonly number[]; values: readonly string[] }, from: number, to: number, maxSteps = 20_000): { from: number; to: number }[] {
+  const out: { from: number; to: number }[] = [];
+  if (!a.at.length || !b.at.length || from >= to) return out;
+  let i = changeIndexAt(a.at, from);
+  let j = changeIndexAt(b.at, from);
+  let pos = from;
+  for (let steps = 0; pos < to && steps < maxSteps; steps++) {
+    const nextA = i + 1 < a.at.length ? a.at[i + 1] : Infinity;
+    const nextB = j + 1 < b.at.length ? b.at[j + 1] : Infinity;
+    const end = Math.min(to, nextA, nextB);
+    if (a.values[i] !== b.values[j]) {
+      const last = out[out.length - 1];
+      if (last && last.to === pos) last.to = end;
+      else out.push({ from: pos, to: end });
+    }
+    if (end === nextA) i++;
+    if (end === nextB) j++;
+    pos = end;
+  }
+  return out;
+}
+
+/** Index of the first element of a sorted list that is >= value. */
+export function lowerBound(sorted: readonly number[], value: number): number {
+  let lo = 0;
+  let hi = sorted.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (sorted[mid] < value) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+/** Markers (sorted cycles) inside [from, to), at most one per pixel column. */
+export function markersInView(sorted: readonly number[], from: number, to: number, cyclesPerPx: number): number[] {
+  const out: number[] = [];
+  const px = Math.max(1, cyclesPerPx);
+  for (let k = lowerBound(sorted, from); k < sorted.length && sorted[k] < to; ) {
+    const c = sorted[k];
+    out.push(c);
+    k = lowerBound(sorted, c + px);
+  }
+  return out;
+}
+
+/** Appends pushed change-list entries to tracks, in place; an entry that repeats the last value is no change. */
+export function appendChunk(tracks: { at: number[]; values: string[] }[], chunk: readonly { at: readonly number[]; values: readonly string[] }[]): void {
+  chunk.forEach((c, k) => {
+    const t = tracks[k];
+    if (!t) return;
+    for (let i = 0; i < c.at.length; i++) {
+      if (t.values.length && t.values[t.values.length - 1] === c.values[i]) continue;
+      t.at.push(c.at[i]);
+      t.values.push(c.values[i]);
+    }
+  });
+}
