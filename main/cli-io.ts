@@ -37,3 +37,10 @@ export function parseOptions(argv: string[], spec: { flags?: string[]; values?: 
   }
   return { positionals, flags, values, problems };
 }
+
+/** Prints each usage problem prefixed with the command's name, then the usage text; returns the usage exit code. */
+export function usageFailure(io: CliIO, who: string, problems: readonly string[], usage: string): number {
+  for (const p of problems) io.err(`${who}: ${p}\n`);
+  io.err(usage);
+  return EXIT.usage;
+}

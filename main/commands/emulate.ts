@@ -1,7 +1,7 @@
 // `twinstep emulate --design FILE --port PATH --baud N`: a board running the design with its probe, on a
 // serial device (one end of a pseudo-terminal pair, for instance), sending frames at the pace of the baud
 // and obeying the host's commands; faults can be injected to see how monitor reports them.
-import { EXIT, parseOptions, type CliIO } from '../cli-io';
+import { EXIT, parseOptions, type CliIO, usageFailure } from '../cli-io';
 import { loadDesign, loadStimulus } from '../design-file';
 import { createEmulator, type BoardEmulator } from '../../core/probe/emulator';
 import { FAULT_SYNTAX, formatFault, parseFaultList, type Fault } from '../../core/probe/faults';
@@ -33,11 +33,7 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
   if (!(Number.isFinite(baud) && baud > 0)) problems.push('--baud needs a positive number');
   if (!isEncoding(encoding)) problems.push(`unknown encoding '${encoding}'`);
   if (opts.positionals.length) problems.push(`unexpected argument '${opts.positionals[0]}'`);
-  if (problems.length) {
-    for (const p of problems) io.err(`${WHO}: ${p}\n`);
-    io.err(USAGE);
-    return EXIT.usage;
-  }
+  if (problems.length) return usageFailure(io, WHO, problems, USAGE);
   const m = loadDesign(opts.values.get('design')!, io, { quietWarnings: true });
   if (!m) return EXIT.usage;
   const prepared = prepareDesign(m, encoding as 'binary', io, WHO);

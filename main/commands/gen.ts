@@ -2,7 +2,7 @@
 // a self-checking testbench for a stimulus and the UART probe's board top.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { EXIT, parseOptions, type CliIO } from '../cli-io';
+import { EXIT, parseOptions, type CliIO, usageFailure } from '../cli-io';
 import { loadDesign, loadStimulus } from '../design-file';
 import { synthesize } from '../../core/synth/index';
 import { generateHdl, type ControllerStyle, type ResetPolarity } from '../../core/hdl/modules';
@@ -31,11 +31,7 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
   if (!['binary', 'gray', 'onehot', 'custom'].includes(encoding)) problems.push(`unknown encoding '${encoding}'`);
   if (!['behavioral', 'equations'].includes(controller)) problems.push(`unknown controller style '${controller}'`);
   if (!['low', 'high'].includes(reset)) problems.push(`--reset takes low or high, not '${reset}'`);
-  if (problems.length) {
-    for (const p of problems) io.err(`twinstep gen: ${p}\n`);
-    io.err(USAGE);
-    return EXIT.usage;
-  }
+  if (problems.length) return usageFailure(io, 'twinstep gen', problems, USAGE);
   const m = loadDesign(opts.positionals[0], io, { quietWarnings: true });
   if (!m) return EXIT.errors;
   const syn = synthesize(m, { encoding: encoding as 'binary' });

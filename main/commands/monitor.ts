@@ -2,7 +2,7 @@
 // with a status line, optional recording of everything received (a capture `replay` reads back with the
 // same verdicts) and optional driving of the design's inputs from a stimulus file, one step per row.
 import path from 'node:path';
-import { EXIT, parseOptions, type CliIO } from '../cli-io';
+import { EXIT, parseOptions, type CliIO, usageFailure } from '../cli-io';
 import { loadDesign, loadStimulus } from '../design-file';
 import { createComparator, type Comparator } from '../../core/compare/comparator';
 import { captureHeader } from '../../core/capture/header';
@@ -54,11 +54,7 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
   if (!Number.isInteger(limit) || limit < 0) problems.push('--limit needs a whole number');
   if (opts.values.has('drive') && opts.flags.has('no-reset')) problems.push('--drive steps the board from reset; it cannot be combined with --no-reset');
   if (opts.positionals.length) problems.push(`unexpected argument '${opts.positionals[0]}'`);
-  if (problems.length) {
-    for (const p of problems) io.err(`${WHO}: ${p}\n`);
-    io.err(USAGE);
-    return EXIT.usage;
-  }
+  if (problems.length) return usageFailure(io, WHO, problems, USAGE);
   const m = loadDesign(opts.values.get('design')!, io, { quietWarnings: true });
   if (!m) return EXIT.usage;
   const prepared = prepareDesign(m, encoding as 'binary', io, WHO);

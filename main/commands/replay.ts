@@ -2,7 +2,7 @@
 // as a live run and prints the verdicts; optionally a VCD of board and model, and a replay testbench.
 import { mkdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
-import { EXIT, parseOptions, type CliIO } from '../cli-io';
+import { EXIT, parseOptions, type CliIO, usageFailure } from '../cli-io';
 import { loadDesign } from '../design-file';
 import { createComparator, type Comparator } from '../../core/compare/comparator';
 import { fingerprintNote, layoutMismatch } from '../../core/capture/header';
@@ -46,11 +46,7 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
   if (!['low', 'high'].includes(reset)) problems.push(`--reset takes low or high, not '${reset}'`);
   if (!Number.isInteger(tbCycles) || tbCycles < 1) problems.push('--tb-cycles needs a positive whole number');
   if (!Number.isInteger(limit) || limit < 0) problems.push('--limit needs a whole number');
-  if (problems.length) {
-    for (const p of problems) io.err(`${WHO}: ${p}\n`);
-    io.err(USAGE);
-    return EXIT.usage;
-  }
+  if (problems.length) return usageFailure(io, WHO, problems, USAGE);
   const m = loadDesign(designFile!, io, { quietWarnings: true });
   if (!m) return EXIT.usage;
   const capturePath = path.resolve(io.cwd, opts.positionals[0]);
