@@ -8,8 +8,7 @@ import { BoardEmulator } from '../core/probe/emulator';
 import { simulate } from '../core/model/trace';
 import { randomStimulus } from '../core/model/stimulus';
 import { cobsEncode } from '../core/protocol/cobs';
-import { crc16 } from '../core/protocol/crc';
-import { rawCommand } from '../core/protocol/commands';
+import { commandCrc, rawCommand } from '../core/protocol/commands';
 import { evalExpr } from '../core/ir/eval';
 import { fixtureNames } from './support/load';
 import { buildBoard, padRows, simulateBoard, BIT_NS, type Board, type HostAction } from './probe-board';
@@ -172,75 +171,22 @@ describe('board top with probe in Icarus Verilog, host commands', () => {
   });
 });
 
-describe('ts_probe_ctrl command receiver in Icarus Verilog against CommandDecoder', () => {
-  it('obeys exactly the commands the TypeScript decoder accepts, in a stream of good, damaged and garbage segments', () => {
-    const widths = [1, 1, 8, 1];
-    const v = inputVector(widths);
-    const rng = new SeededRandom(2024);
-    const pick = (): HostCommand => {
-      switch (rng.below(6)) {
-        case 0: return { kind: 'run' };
-        case 1: return { kind: 'halt' };
-        case 2: return { kind: 'step', cycles: rng.below(2) ? rng.below(4) : rng.below(65536) };
-        case 3: return { kind: 'reset' };
-        case 4: return { kind: 'host-inputs', on: rng.below(2) === 1 };
-        default: return { kind: 'inputs', values: widths.map((w) => rng.bits(w)) };
-      }
-    };
-    const stream: number[] = [];
-    for (let k = 0; k < 160; k++) {
-      const kind = rng.below(8);
-      if (kind < 3) stream.push(...encodeCmd(pick(), v));
-      else if (kind === 3) {
-        // One to three flipped bits in the raw command, restuffed: the CRC must catch it.
-        const raw = rawCommand(pick(), v);
-        for (let f = 0; f <= rng.below(3); f++) raw[rng.below(raw.length)] ^= 1 << rng.below(8);
-        stream.push(0, ...cobsEncode(raw), 0);
-      } else if (kind === 4) {
-        // A command cut short or with a byte removed.
-        const wire = [...encodeCmd(pick(), v)];
-        wire.splice(1 + rng.below(wire.length - 2), 1);
-        stream.push(...wire);
-      } else if (kind === 5) {
-        // Random bytes, sometimes long enough to overrun any command.
-        const n = rng.below(3) === 0 ? 20 + rng.below(30) : 1 + rng.below(8);
-        for (let i = 0; i < n; i++) stream.push(rng.below(256));
-        stream.push(0);
-      } else if (kind === 6) {
-        // A good command with a wrong opcode value or wrong length, CRC made valid.
-        const body = [rng.below(256), ...Array.from({ length: rng.below(5) }, () => rng.below(256))];
-        const raw = Uint8Array.from([...body, 0, 0]);
-        const crc = crc16(raw, 0, body.length);
-        raw[body.length] = crc >> 8;
-        raw[body.length + 1] = crc & 0xff;
-        stream.push(0, ...cobsEncode(raw), 0);
-      } else stream.push(0, 0);
-    }
-    const expected = new CommandDecoder(v).push(Uint8Array.from(stream)).flatMap((e) => {
-      if (e.kind !== 'command') return [];
-      const c = e.command;
-      if (c.kind === 'step') return [`3 ${c.cycles.toString(16)}`];
-      if (c.kind === 'inputs') return [`7 ${(c.values[0] | (c.values[1] << 1n) | (c.values[2] << 2n) | (c.values[3] << 10n)).toString(16)}`];
-      const op = { run: 1, halt: 2, reset: 4, 'host-inputs': c.kind === 'host-inputs' && c.on ? 5 : 6 }[c.kind];
-      return [`${op}`];
-    });
-    expect(expected.length).toBeGreaterThan(40);
-    const tb = `\`timescale 1ns/1ps
+/** A testbench around ts_probe_ctrl alone: a host UART on rxd playing `body` (Verilog statements using send(byte)). */
+function ctrlBench(inBits: number, monitor: string, body: string): string[] {
+  const w = Math.max(1, inBits);
+  const tb = `\`timescale 1ns/1ps
 module tb;
   localparam integer BIT_NS = ${BIT_NS};
   reg clk = 1'b0;
   always #5 clk = ~clk;
   reg rst = 1'b1, rxd = 1'b1;
-  wire [10:0] inputs;
+  wire [${w - 1}:0] inputs;
   wire ce, design_rst, txd;
-  ts_probe_ctrl #(.IN_BITS(11), .PAYLOAD_BITS(16), .DIVISOR(16), .START_HALTED(1)) dut (
-    .clk(clk), .rst(rst), .pins(11'h000), .inputs(inputs), .payload(16'h1234), .ce(ce), .design_rst(design_rst), .txd(txd), .rxd(rxd));
-  always @(posedge clk) if (dut.accept)
-    case (dut.opcode)
-      3'd3: $display("C 3 %0h", dut.step_arg);
-      3'd7: $display("C 7 %0h", dut.host_arg);
-      default: $display("C %0d", dut.opcode);
-    endcase
+  integer ce_count = 0;
+  ts_probe_ctrl #(.IN_BITS(${inBits}), .PAYLOAD_BITS(1), .DIVISOR(16), .START_HALTED(1)) dut (
+    .clk(clk), .rst(rst), .pins(${w}'d0), .inputs(inputs), .payload(1'b1), .ce(ce), .design_rst(design_rst), .txd(txd), .rxd(rxd));
+  always @(posedge clk) if (ce) ce_count <= ce_count + 1;
+${monitor}
   task send(input [7:0] v);
     integer j;
     begin
@@ -252,16 +198,152 @@ module tb;
   initial begin
     repeat (4) @(negedge clk);
     rst = 1'b0;
-    ${stream.map((b) => `send(8'h${b.toString(16).padStart(2, '0')});`).join('\n    ')}
+${body}
     #(BIT_NS * 20);
-    $display("END");
+    $display("END %0d", ce_count);
     $finish;
   end
 endmodule
 `;
-    const files = Object.fromEntries(probeBlockFiles().map((f) => [f.name, f.text]));
-    const out = runIcarus({ ...files, 'tb.v': tb }, 'tb').split('\n');
-    expect(out).toContain('END');
-    expect(out.filter((l) => l.startsWith('C ')).map((l) => l.slice(2))).toEqual(expected);
+  const files = Object.fromEntries(probeBlockFiles().map((f) => [f.name, f.text]));
+  const out = runIcarus({ ...files, 'tb.v': tb }, 'tb').split('\n');
+  expect(out.some((l) => l.startsWith('END '))).toBe(true);
+  return out;
+}
+
+const sendBytes = (bytes: Iterable<number>) => [...bytes].map((b) => `send(8'h${b.toString(16).padStart(2, '0')});`).join(' ');
+
+describe('ts_probe_ctrl command receiver in Icarus Verilog against CommandDecoder', () => {
+  /** Segments meant to trip a receiver up, each with a valid CRC where that matters. */
+  function crafted(v: ReturnType<typeof inputVector>): number[] {
+    const withCrc = (body: number[]) => {
+      const raw = Uint8Array.from([...body, 0, 0]);
+      const crc = commandCrc(raw, 0, body.length);
+      raw[body.length] = crc & 0xff;
+      raw[body.length + 1] = crc >> 8;
+      return raw;
+    };
+    const good = (c: HostCommand) => [...encodeCmd(c, v)];
+    return [
+      // Arguments and check words with zero bytes: several COBS blocks per command.
+      ...good({ kind: 'step', cycles: 0 }), ...good({ kind: 'step', cycles: 256 }), ...good({ kind: 'step', cycles: 0xffff }),
+      ...good({ kind: 'inputs', values: v.widths.map(() => 0n) }),
+      // Opcode byte 0 (the first code byte is 01), opcode bytes with high bits set, a 0x0F opcode.
+      0, ...cobsEncode(withCrc([0x00])), 0, 0, ...cobsEncode(withCrc([0x81])), 0, 0, ...cobsEncode(withCrc([0x0f])), 0,
+      0, ...cobsEncode(withCrc([0x00, 0x03, 0x01, 0x00])), 0,
+      // Code bytes announcing blocks longer than any command, with and without the bytes to fill them.
+      0, 0x09, 0x02, 0x95, 0x2c, 0, 0, 0x10, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 0,
+      0, 0x07, 0x03, 0x01, 0x01, 0x01, 0x01, 0x01, 0, 0, 0xff, ...Array.from({ length: 254 }, () => 0x42), 0,
+      // A valid command cut short by a delimiter, then the rest of it.
+      ...good({ kind: 'halt' }).slice(0, 3), 0, ...good({ kind: 'run' }),
+      // A command inside a longer segment and a good command right after a lone 0x00.
+      0, 0x42, ...good({ kind: 'reset' }).slice(1), 0, ...good({ kind: 'host-inputs', on: true }),
+    ];
+  }
+
+  for (const widths of [[1, 1, 8, 1], [30], []]) {
+    const inBits = widths.reduce((a, b) => a + b, 0);
+    it(`obeys exactly the commands the TypeScript decoder accepts (${inBits} input bits): good, damaged and garbage segments`, () => {
+      const v = inputVector(widths);
+      const rng = new SeededRandom(2024 + inBits);
+      const pick = (): HostCommand => {
+        switch (rng.below(6)) {
+          case 0: return { kind: 'run' };
+          case 1: return { kind: 'halt' };
+          case 2: return { kind: 'step', cycles: rng.below(2) ? rng.below(4) : rng.below(65536) };
+          case 3: return { kind: 'reset' };
+          case 4: return { kind: 'host-inputs', on: rng.below(2) === 1 };
+          default: return { kind: 'inputs', values: widths.map((w) => rng.bits(w)) };
+        }
+      };
+      const stream: number[] = crafted(v);
+      for (let k = 0; k < 200; k++) {
+        const kind = rng.below(8);
+        if (kind < 3) stream.push(...encodeCmd(pick(), v));
+        else if (kind === 3) {
+          // One to three flipped bits in the raw command, restuffed: the CRC must catch it.
+          const raw = rawCommand(pick(), v);
+          for (let f = 0; f <= rng.below(3); f++) raw[rng.below(raw.length)] ^= 1 << rng.below(8);
+          stream.push(0, ...cobsEncode(raw), 0);
+        } else if (kind === 4) {
+          // A command cut short or with a byte removed.
+          const wire = [...encodeCmd(pick(), v)];
+          wire.splice(1 + rng.below(wire.length - 2), 1);
+          stream.push(...wire);
+        } else if (kind === 5) {
+          // Random bytes, sometimes long enough to overrun any command.
+          const n = rng.below(3) === 0 ? 20 + rng.below(30) : 1 + rng.below(8);
+          for (let i = 0; i < n; i++) stream.push(rng.below(256));
+          stream.push(0);
+        } else if (kind === 6) {
+          // A good command with a wrong opcode value or wrong length, CRC made valid.
+          const body = [rng.below(256), ...Array.from({ length: rng.below(6) }, () => rng.below(256))];
+          const raw = Uint8Array.from([...body, 0, 0]);
+          const crc = commandCrc(raw, 0, body.length);
+          raw[body.length] = crc & 0xff;
+          raw[body.length + 1] = crc >> 8;
+          stream.push(0, ...cobsEncode(raw), 0);
+        } else stream.push(0, 0);
+      }
+      const offsets = v.layout ? v.layout.offsets : [];
+      const expected = new CommandDecoder(v).push(Uint8Array.from(stream)).flatMap((e) => {
+        if (e.kind !== 'command') return [];
+        const c = e.command;
+        if (c.kind === 'step') return [`3 ${c.cycles.toString(16)}`];
+        if (c.kind === 'inputs') return [`7 ${c.values.reduce((acc, x, i) => acc | (x << BigInt(offsets[i])), 0n).toString(16)}`];
+        const op = { run: 1, halt: 2, reset: 4, 'host-inputs': c.kind === 'host-inputs' && c.on ? 5 : 6 }[c.kind];
+        return [`${op}`];
+      });
+      expect(expected.length).toBeGreaterThan(50);
+      const monitor = `  always @(posedge clk) if (dut.accept)
+    case (dut.opcode)
+      3'd3: $display("C 3 %0h", dut.step_arg);
+      3'd7: $display("C 7 %0h", dut.host_arg);
+      default: $display("C %0d", dut.opcode);
+    endcase`;
+      const out = ctrlBench(inBits, monitor, `    ${sendBytes(stream)}`);
+      expect(out.filter((l) => l.startsWith('C ')).map((l) => l.slice(2))).toEqual(expected);
+    });
+  }
+});
+
+describe('ts_probe_ctrl step counting in Icarus Verilog', () => {
+  it('runs exactly N cycles for step N, and counts down bit-serially across byte borrows', () => {
+    // The count is kept as a 16-bit register updated one bit per clock; after each pass the testbench prints it.
+    // Expected: each step command loads N, and each cycle run after it takes exactly 1 off (arithmetic by hand).
+    const v = inputVector([]);
+    const cmd = (c: HostCommand) => sendBytes(encodeCmd(c, v));
+    const monitor = `  reg was_busy = 1'b0;
+  always @(posedge clk) begin
+    was_busy <= dut.pass_busy;
+    if (was_busy && !dut.pass_busy) $display("P %0d %0d", dut.steps, ce_count);
+  end`;
+    const frameWait = `#(BIT_NS * 80);`;
+    const body = [
+      // Runs to completion: 3, then 0 (nothing), then 260 cycles.
+      `    ${cmd({ kind: 'step', cycles: 3 })} ${frameWait.repeat(5)}`,
+      `    ${cmd({ kind: 'step', cycles: 0 })} ${frameWait.repeat(3)}`,
+      `    ${cmd({ kind: 'step', cycles: 260 })} wait (ce_count == 263); ${frameWait.repeat(3)}`,
+      // Large counts, halted after a few cycles: the borrow runs through 8, 15 and no bits.
+      `    ${cmd({ kind: 'step', cycles: 0x100 })} wait (ce_count == 266); ${cmd({ kind: 'halt' })} ${frameWait.repeat(3)}`,
+      `    ${cmd({ kind: 'step', cycles: 0x8000 })} wait (ce_count >= 269); ${cmd({ kind: 'halt' })} ${frameWait.repeat(3)}`,
+      `    ${cmd({ kind: 'step', cycles: 0xffff })} wait (ce_count >= 272); ${cmd({ kind: 'halt' })} ${frameWait.repeat(3)}`,
+    ].join('\n');
+    const out = ctrlBench(0, monitor, body);
+    const end = Number(out.find((l) => l.startsWith('END '))!.slice(4));
+    const passes = out.filter((l) => l.startsWith('P ')).map((l) => l.slice(2).split(' ').map(Number));
+    // Group the printed counts by command: a load starts a group, each later pass is one cycle run.
+    const groups: number[][] = [];
+    let lastCe = -1;
+    for (const [steps, ce] of passes) {
+      if (ce === lastCe || groups.length === 0) groups.push([steps]);
+      else groups[groups.length - 1].push(steps);
+      lastCe = ce;
+    }
+    expect(groups.map((g) => g[0])).toEqual([3, 0, 260, 0x100, 0x8000, 0xffff]);
+    for (const g of groups) expect(g).toEqual(g.map((_, i) => g[0] - i));
+    expect(groups.slice(0, 3).map((g) => g.length - 1)).toEqual([3, 0, 260]);
+    expect(groups.slice(3).every((g) => g.length >= 4)).toBe(true);
+    expect(end).toBe(groups.reduce((a, g) => a + g.length - 1, 0));
   });
 });

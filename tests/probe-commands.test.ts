@@ -3,8 +3,10 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
+  COMMAND_CRC_PARAMS,
   COMMAND_OPCODE,
   CommandDecoder,
+  commandCrc,
   encodeCommand,
   encodeCommands,
   inputVector,
@@ -17,15 +19,17 @@ import { cobsEncode } from '../core/protocol/cobs';
 import { PROBE_OPCODES } from '../core/hdl/probe';
 
 /**
- * CRC-16/IBM-3740 written out bit by bit from its catalogue parameters (Greg Cook's CRC catalogue: poly 0x1021,
- * init 0xFFFF, no reflection, xorout 0; check value 0x29B1 for "123456789", quoted from memory and asserted below).
+ * CRC-16/MCRF4XX written out bit by bit from its catalogue parameters (Greg Cook's CRC catalogue: poly 0x1021,
+ * init 0xFFFF, input and output reflected, xorout 0; check value 0x6F91 for "123456789", quoted from memory and
+ * asserted below). Reflected means each byte enters least significant bit first into a register shifting right,
+ * with the polynomial's bits reversed (0x8408).
  */
 function referenceCrc(bytes: number[]): number {
   let r = 0xffff;
   for (const b of bytes) {
-    for (let i = 7; i >= 0; i--) {
-      const top = ((r >> 15) ^ (b >> i)) & 1;
-      r = ((r << 1) & 0xffff) ^ (top ? 0x1021 : 0);
+    for (let i = 0; i < 8; i++) {
+      const low = (r ^ (b >> i)) & 1;
+      r = (r >> 1) ^ (low ? 0x8408 : 0);
     }
   }
   return r;
@@ -47,35 +51,46 @@ function referenceCobs(data: number[]): number[] {
 const vec = inputVector([1, 1, 8, 1]); // a design with inputs of 1, 1, 8 and 1 bits: 11 bits, 2 bytes
 
 describe('command wire format', () => {
-  it('the reference CRC gives the catalogue check value', () => {
-    expect(referenceCrc([...'123456789'].map((c) => c.charCodeAt(0)))).toBe(0x29b1);
+  it('the reference CRC gives the catalogue check value, and so does the one the commands use', () => {
+    const text = [...'123456789'].map((c) => c.charCodeAt(0));
+    expect(referenceCrc(text)).toBe(0x6f91);
+    expect(commandCrc(Uint8Array.from(text))).toBe(0x6f91);
+    expect(COMMAND_CRC_PARAMS).toMatchObject({ name: 'CRC-16/MCRF4XX', poly: 0x1021, init: 0xffff, refin: true, refout: true, xorout: 0 });
   });
 
-  it('each command is 00, COBS(opcode, arguments, CRC high, CRC low), 00', () => {
+  it('each command is 00, COBS(opcode, arguments, CRC low, CRC high), 00, all of one length', () => {
+    // The design's inputs take 2 bytes, so every command carries 2 argument bytes, unused ones 0.
     const cases: { cmd: HostCommand; body: number[] }[] = [
-      { cmd: { kind: 'run' }, body: [0x01] },
-      { cmd: { kind: 'halt' }, body: [0x02] },
+      { cmd: { kind: 'run' }, body: [0x01, 0, 0] },
+      { cmd: { kind: 'halt' }, body: [0x02, 0, 0] },
       // Step counts are 16 bits, low byte first.
       { cmd: { kind: 'step', cycles: 0x1234 }, body: [0x03, 0x34, 0x12] },
       { cmd: { kind: 'step', cycles: 256 }, body: [0x03, 0x00, 0x01] },
-      { cmd: { kind: 'reset' }, body: [0x04] },
-      { cmd: { kind: 'host-inputs', on: true }, body: [0x05] },
-      { cmd: { kind: 'host-inputs', on: false }, body: [0x06] },
+      { cmd: { kind: 'reset' }, body: [0x04, 0, 0] },
+      { cmd: { kind: 'host-inputs', on: true }, body: [0x05, 0, 0] },
+      { cmd: { kind: 'host-inputs', on: false }, body: [0x06, 0, 0] },
       // Inputs 1,0,0xA5,1 packed LSB-first: bit0 = 1, bit1 = 0, bits 2..9 = 0xA5, bit 10 = 1 -> 0x695 -> 95 06.
       { cmd: { kind: 'inputs', values: [1n, 0n, 0xa5n, 1n] }, body: [0x07, 0x95, 0x06] },
     ];
     for (const { cmd, body } of cases) {
       const crc = referenceCrc(body);
-      const raw = [...body, crc >> 8, crc & 0xff];
+      const raw = [...body, crc & 0xff, crc >> 8];
       expect([...rawCommand(cmd, vec)], JSON.stringify(cmd, (_, v) => (typeof v === 'bigint' ? v.toString() : v))).toEqual(raw);
       expect([...encodeCommand(cmd, vec)]).toEqual([0, ...referenceCobs(raw), 0]);
     }
+    // A design with 3 input bytes gives every command 3 argument bytes; one without inputs, 2 (the step count).
+    const wide = inputVector([20]);
+    expect([...rawCommand({ kind: 'step', cycles: 0x1234 }, wide)].slice(0, 4)).toEqual([0x03, 0x34, 0x12, 0x00]);
+    expect(rawCommand({ kind: 'run' }, wide).length).toBe(6);
+    expect(rawCommand({ kind: 'run' }, inputVector([])).length).toBe(5);
   });
 
   it('matches the worked examples of docs/probe-protocol.md', () => {
-    // CRC values from Python: binascii.crc_hqx(bytes([2]), 0xFFFF) = 0xC1B2, crc_hqx(bytes([3, 0, 1]), 0xFFFF) = 0x85ED.
-    expect([...encodeCommand({ kind: 'halt' }, vec)]).toEqual([0x00, 0x04, 0x02, 0xc1, 0xb2, 0x00]);
-    expect([...encodeCommand({ kind: 'step', cycles: 256 }, vec)]).toEqual([0x00, 0x02, 0x03, 0x04, 0x01, 0x85, 0xed, 0x00]);
+    // CRC values worked out with the bitwise reference above: halt (02 00 00) 0x8C8B, step 256 (03 00 01) 0xC7DE.
+    expect(referenceCrc([0x02, 0x00, 0x00])).toBe(0x8c8b);
+    expect(referenceCrc([0x03, 0x00, 0x01])).toBe(0xc7de);
+    expect([...encodeCommand({ kind: 'halt' }, vec)]).toEqual([0x00, 0x02, 0x02, 0x01, 0x03, 0x8b, 0x8c, 0x00]);
+    expect([...encodeCommand({ kind: 'step', cycles: 256 }, vec)]).toEqual([0x00, 0x02, 0x03, 0x04, 0x01, 0xde, 0xc7, 0x00]);
   });
 
   it('opcodes are the documented ones', () => {
@@ -159,7 +174,7 @@ describe('command decoder', () => {
 
   it('rejects a command with 1 to 3 flipped bits', () => {
     // CRC-16 with poly 0x1021 detects every error of up to 3 bits in messages up to 32751 bits (Hamming distance 4,
-    // Koopman's CRC tables; quoted from memory). The raw frame is damaged before stuffing, so the length holds
+    // Koopman's CRC tables; quoted from memory); reflecting the bit order does not change that. The raw frame is damaged before stuffing, so the length holds
     // and only the CRC (or a changed opcode's length rule) can catch it.
     fc.assert(
       fc.property(
@@ -182,7 +197,7 @@ describe('command decoder', () => {
     const d = new CommandDecoder(vec);
     const rawUnknown = [0x09, ...crcBytes([0x09])];
     const shortStep = [0x03, 0x01, ...crcBytes([0x03, 0x01])];
-    const badCrc = [0x02, 0x00, 0x00];
+    const badCrc = [0x02, 0x00, 0x00, 0x00, 0x00];
     const ev = d.push(Uint8Array.from([0, ...referenceCobs(rawUnknown), 0, ...referenceCobs(shortStep), 0, ...referenceCobs(badCrc), 0, 5, 1, 0]));
     expect(ev.map((e) => (e.kind === 'error' ? e.message : 'command'))).toEqual([
       expect.stringMatching(/unknown opcode 0x09/),
@@ -194,7 +209,8 @@ describe('command decoder', () => {
   });
 });
 
+/** The check word as a command carries it, low byte first. */
 function crcBytes(body: number[]): number[] {
   const c = referenceCrc(body);
-  return [c >> 8, c & 0xff];
+  return [c & 0xff, c >> 8];
 }

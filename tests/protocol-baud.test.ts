@@ -65,26 +65,31 @@ module tb;
   reg tx_clk = 1'b0, rx_clk = 1'b0;
   always #(${txNs / 2}) tx_clk = ~tx_clk;
   always #(${rxNs / 2}) rx_clk = ~rx_clk;
-  reg rst = 1'b1, valid = 1'b0;
-  reg [7:0] data = 8'h00;
-  wire ready, line, rx_valid, rx_error;
+  reg rst = 1'b1;
+  wire advance, line, rx_valid, rx_error;
   wire [7:0] rx_data;
-  ts_uart_tx #(.DIVISOR(${p.divisor})) tx (.clk(tx_clk), .rst(rst), .data(data), .valid(valid), .ready(ready), .txd(line));
-  ts_uart_rx #(.DIVISOR(${p.divisor})) rx (.clk(rx_clk), .rst(rst), .rxd(line), .data(rx_data), .valid(rx_valid), .frame_error(rx_error));
+  reg [7:0] vec [0:${bytes.length - 1}];
+  // The byte source: byte k, bit bit_no, offered until the transmitter has read all of them.
+  integer k = 0;
+  reg [2:0] bit_no = 3'd0;
+  wire valid = !rst && k < ${bytes.length};
+  wire [7:0] data = vec[k < ${bytes.length} ? k : 0];
+  ts_uart_tx #(.DIVISOR(${p.divisor})) tx (.clk(tx_clk), .rst(rst), .valid(valid), .data_bit(data[bit_no]), .last(bit_no == 3'd7),
+    .advance(advance), .txd(line));
+  ts_uart_rx #(.DIVISOR(${p.divisor})) rx (.clk(rx_clk), .rst(rst), .rxd(line), .data(rx_data), .valid(rx_valid), .frame_error(rx_error),
+    .bit_strobe(), .bit_data());
+  always @(posedge tx_clk) if (advance) begin
+    bit_no <= bit_no + 3'd1;
+    if (bit_no == 3'd7) k <= k + 1;
+  end
   always @(posedge rx_clk) begin
     if (rx_valid) $display("B %02x", rx_data);
     if (rx_error) $display("E 00");
   end
-  reg [7:0] vec [0:${bytes.length - 1}];
-  integer k;
   initial begin
 ${bytes.map((b, i) => `    vec[${i}] = 8'h${b.toString(16)};`).join('\n')}
     #1000 rst = 1'b0;
-    for (k = 0; k < ${bytes.length}; k = k + 1) begin
-      @(negedge tx_clk); data = vec[k]; valid = 1'b1;
-      @(negedge tx_clk); while (!ready) @(negedge tx_clk);
-      valid = 1'b0;
-    end
+    wait (k == ${bytes.length});
     #(${Math.ceil(1e9 / p.actualBaud) * 30});
     $finish;
   end

@@ -5,86 +5,48 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { SeededRandom } from '../core/util/prng';
 import { FrameDecoder } from '../core/protocol/decoder';
-import { encodeCycleFrame, encodeIdFrame, LAYOUT_VERSION, makeLayout, type FrameField } from '../core/protocol/frame';
-import { COBS_PUBLISHED } from './protocol-vectors';
+import { encodeCycleFrame, encodeIdFrame, LAYOUT_VERSION, makeLayout, rawCycleFrame, type FrameField } from '../core/protocol/frame';
 import { bytesTagged, hexLines, simulate, writeBlocks } from './protocol-hdl';
 
 describe('ts_crc16 in Icarus Verilog', () => {
-  it('gives the catalogue check value 0x29B1 for "123456789"', () => {
-    // Greg Cook's CRC catalogue, CRC-16/IBM-3740: check=0x29b1 (quoted from memory; confirmed in
-    // protocol-crc.test.ts against CPython's binascii.crc_hqx).
-    const { dir, files } = writeBlocks('crc');
+  /** Feed "123456789" to ts_crc16 one bit per clock, in the bit order the parameter set takes. */
+  function checkValue(reflected: boolean): number {
+    const { dir, files } = writeBlocks(`crc${reflected ? 'r' : 'u'}`);
     fs.writeFileSync(path.join(dir, 'tb.v'), `\`timescale 1ns/1ns
 module tb;
   reg clk = 1'b0;
   always #5 clk = ~clk;
-  reg init = 1'b1, enable = 1'b0;
-  reg [7:0] data = 8'h00;
+  reg init = 1'b1, enable = 1'b0, data = 1'b0;
   wire [15:0] crc;
   reg [8*9-1:0] text = "123456789";
-  integer i;
-  ts_crc16 dut (.clk(clk), .init(init), .enable(enable), .data(data), .crc(crc));
+  integer i, j;
+  ts_crc16 #(.REFLECTED(${reflected ? 1 : 0})) dut (.clk(clk), .init(init), .enable(enable), .data(data), .crc(crc));
   initial begin
     @(negedge clk); init = 1'b0; enable = 1'b1;
-    for (i = 8; i >= 0; i = i - 1) begin
-      data = text[i*8 +: 8];
-      @(negedge clk);
-    end
+    for (i = 8; i >= 0; i = i - 1)
+      for (j = 0; j < 8; j = j + 1) begin
+        data = text[i*8 + ${reflected ? 'j' : '7 - j'}];
+        @(negedge clk);
+      end
     enable = 1'b0;
     $display("CRC %04x", crc);
     $finish;
   end
 endmodule
 `);
-    const lines = simulate(dir, [...files, 'tb.v'], 'tb');
-    expect(bytesTagged(lines, 'CRC')).toEqual([0x29b1]);
-  });
-});
+    return bytesTagged(simulate(dir, [...files, 'tb.v'], 'tb'), 'CRC')[0];
+  }
 
-describe('ts_cobs_stuffer in Icarus Verilog', () => {
-  it('stuffs the published COBS examples back to back, under random output back-pressure', () => {
-    // Expected output: the examples reproduced in the Wikipedia COBS article (see protocol-vectors.ts), each
-    // followed by the 0x00 delimiter the stuffer appends.
-    const { dir, files } = writeBlocks('cobs');
-    const input: number[] = [];
-    for (const ex of COBS_PUBLISHED) ex.data.forEach((b, i) => input.push(b | (i === ex.data.length - 1 ? 0x100 : 0)));
-    fs.writeFileSync(path.join(dir, 'input.hex'), hexLines(input, 3));
-    fs.writeFileSync(path.join(dir, 'tb.v'), `\`timescale 1ns/1ns
-module tb;
-  localparam integer N = ${input.length};
-  reg clk = 1'b0;
-  always #5 clk = ~clk;
-  reg rst = 1'b1;
-  reg [8:0] stream [0:N-1];
-  integer next = 0, seed = 7;
-  wire [7:0] out_data;
-  wire in_ready, out_valid;
-  reg out_ready = 1'b0;
-  wire in_valid = (next < N);
-  wire [8:0] word = in_valid ? stream[next] : 9'h000;
-  ts_cobs_stuffer dut (.clk(clk), .rst(rst), .in_data(word[7:0]), .in_valid(in_valid), .in_last(word[8]),
-    .in_ready(in_ready), .out_data(out_data), .out_valid(out_valid), .out_ready(out_ready));
-  initial $readmemh("input.hex", stream);
-  always @(posedge clk) begin
-    if (!rst) begin
-      if (in_valid && in_ready) next <= next + 1;
-      if (out_valid && out_ready) $display("B %02x", out_data);
-    end
-  end
-  // The receiving side accepts on about two cycles in three.
-  always @(negedge clk) out_ready <= ($random(seed) % 3) != 0;
-  initial begin
-    repeat (3) @(negedge clk);
-    rst = 1'b0;
-    wait (next == N);
-    repeat (2000) @(negedge clk);
-    $finish;
-  end
-endmodule
-`);
-    const got = bytesTagged(simulate(dir, [...files, 'tb.v'], 'tb'), 'B');
-    const expected = COBS_PUBLISHED.flatMap((ex) => [...ex.encoded, 0x00]);
-    expect(got).toEqual(expected);
+  it('unreflected, bytes MSB first: the catalogue check value of CRC-16/IBM-3740, 0x29B1', () => {
+    // Greg Cook's CRC catalogue, CRC-16/IBM-3740: check=0x29b1 (quoted from memory; confirmed in
+    // protocol-crc.test.ts against CPython's binascii.crc_hqx).
+    expect(checkValue(false)).toBe(0x29b1);
+  });
+
+  it('reflected, bytes LSB first: the catalogue check value of CRC-16/MCRF4XX, 0x6F91', () => {
+    // Greg Cook's CRC catalogue, CRC-16/MCRF4XX: check=0x6f91 (quoted from memory; it is also CRC-16/X-25's
+    // check value 0x906E with X-25's final XOR of 0xFFFF undone).
+    expect(checkValue(true)).toBe(0x6f91);
   });
 });
 
@@ -185,7 +147,7 @@ function randomRun(seed: number, fields: FrameField[], count: number, idEveryLog
   const rng = new SeededRandom(seed);
   const frames = Array.from({ length: count }, (_, k) =>
     fields.map((f) => {
-      // Mix in all-zero and all-one values so the stuffer sees runs of zeros and long non-zero runs.
+      // Mix in all-zero and all-one values so the stuffing sees runs of zeros and long non-zero runs.
       const pick = rng.below(4);
       if (pick === 0) return 0n;
       if (pick === 1) return (1n << BigInt(f.width)) - 1n;
@@ -233,10 +195,49 @@ describe('ts_probe_link (packer + CRC + COBS + UART TX) in Icarus Verilog', () =
     const run = randomRun(5, [{ name: 'only', width: 1 }], 12, 2, 20);
     expect(runLink(run)).toEqual(expectedStream(run));
   });
+
+  it('stuffs frames whose CRC bytes are zero, and frames without any zero byte', () => {
+    // Payloads picked so that frame 1 ends in a 0x00 CRC low byte, frame 2 has a 0x00 CRC high byte and frame 3
+    // has no zero byte at all. COBS (Cheshire and Baker, 1999) then ends frame 1 with an empty run, code 0x01,
+    // and sends frame 3 as one run whose code is its length + 1.
+    const fields = [{ name: 'v', width: 16 }];
+    const layout = makeLayout(fields);
+    const find = (k: number, ok: (raw: Uint8Array) => boolean): bigint => {
+      for (let v = 1n; v < 0x10000n; v++) if (ok(rawCycleFrame(layout, k, [v]))) return v;
+      throw new Error(`no payload for frame ${k}`);
+    };
+    const frames = [
+      [0n],
+      [find(1, (r) => r[4] === 0 && r[3] !== 0 && r[1] !== 0 && r[2] !== 0)],
+      [find(2, (r) => r[3] === 0 && r[4] !== 0 && r[1] !== 0 && r[2] !== 0)],
+      [find(3, (r) => r.every((b) => b !== 0))],
+    ];
+    const run: LinkRun = { fields, frames, gaps: [0, 0, 30, 0], idEveryLog2: 7, fingerprint: 0x0102_0304, divisor: 16 };
+    const got = runLink(run);
+    expect(got).toEqual(expectedStream(run));
+    const wire = frames.map((values, k) => [...encodeCycleFrame(layout, k, values)]);
+    expect(wire[1].slice(-2)).toEqual([0x01, 0x00]);
+    expect(wire[3][0]).toBe(6); // 5 raw bytes, no zero: one run
+  });
+
+  it('sends the longest frame, 2008 payload bits, as a single full run (code 0xFF)', () => {
+    // 2008 bits = 251 payload bytes: with the header and the CRC a 254-byte frame, the longest one COBS code can
+    // cover. Frame 1 is all ones with header 0x01: no zero byte unless the CRC has one.
+    const fields = [...Array.from({ length: 31 }, (_, i) => ({ name: `w${i}`, width: 64 })), { name: 'tail', width: 24 }];
+    const ones = fields.map((f) => (1n << BigInt(f.width)) - 1n);
+    const run: LinkRun = { fields, frames: [ones, ones, fields.map(() => 0n)], gaps: [0, 0, 0], idEveryLog2: 7, fingerprint: 0xfeed_0001, divisor: 16 };
+    const got = runLink(run);
+    expect(got).toEqual(expectedStream(run));
+    // Its CRC bytes happen to be non-zero too, so COBS sends code 0xFF, the 254 bytes and the delimiter.
+    expect(rawCycleFrame(makeLayout(fields), 1, ones).every((b) => b !== 0)).toBe(true);
+    const frame1 = [...encodeCycleFrame(makeLayout(fields), 1, ones)];
+    expect([frame1[0], frame1.length]).toEqual([0xff, 256]);
+    expect(got.filter((b) => b === 0xff).length).toBeGreaterThan(2 * 251);
+  });
 });
 
 describe('ts_uart_rx in Icarus Verilog', () => {
-  it('receives bytes sent 2% fast and 2% slow, flags a missing stop bit and ignores a glitch', () => {
+  it('receives bytes sent 2% fast and 2% slow, flags a missing stop bit and ignores a glitch; strobes each data bit', () => {
     const divisor = 16;
     const clockNs = 10;
     const bytes = [0x00, 0xff, 0x55, 0xaa, 0x01, 0x80, 0x3c, 0xc3];
@@ -248,11 +249,20 @@ module tb;
   always #${clockNs / 2} clk = ~clk;
   reg rst = 1'b1, rxd = 1'b1;
   wire [7:0] data;
-  wire valid, frame_error;
-  ts_uart_rx #(.DIVISOR(${divisor})) dut (.clk(clk), .rst(rst), .rxd(rxd), .data(data), .valid(valid), .frame_error(frame_error));
+  wire valid, frame_error, bit_strobe, bit_data;
+  ts_uart_rx #(.DIVISOR(${divisor})) dut (.clk(clk), .rst(rst), .rxd(rxd), .data(data), .valid(valid), .frame_error(frame_error),
+    .bit_strobe(bit_strobe), .bit_data(bit_data));
+  // The bit strobes, gathered eight at a time, LSB first.
+  reg [7:0] bits = 8'h00;
+  integer nbits = 0;
   always @(posedge clk) begin
     if (valid) $display("B %02x", data);
     if (frame_error) $display("E 00");
+    if (bit_strobe) begin
+      bits = {bit_data, bits[7:1]};
+      nbits = nbits + 1;
+      if (nbits % 8 == 0) $display("S %02x", bits);
+    end
   end
   task send(input [7:0] b, input real bit_ns, input stop);
     integer i;
@@ -282,6 +292,9 @@ ${bytes.map((b, i) => `    vec[${i}] = 8'h${b.toString(16)};`).join('\n')}
 endmodule
 `);
     const lines = simulate(dir, [...files, 'tb.v'], 'tb');
-    expect(lines.filter((l) => /^[BE] /.test(l))).toEqual([...bytes, ...bytes].map((b) => `B ${b.toString(16).padStart(2, '0')}`).concat(['E 00', 'B 42']));
+    const hex = (b: number) => b.toString(16).padStart(2, '0');
+    expect(lines.filter((l) => /^[BE] /.test(l))).toEqual([...bytes, ...bytes].map((b) => `B ${hex(b)}`).concat(['E 00', 'B 42']));
+    // Every character with a real start bit strobes its 8 data bits, the one with the low stop bit too.
+    expect(lines.filter((l) => l.startsWith('S '))).toEqual([...bytes, ...bytes, 0x5a, 0x42].map((b) => `S ${hex(b)}`));
   });
 });

@@ -43,22 +43,23 @@ const range = (w: number) => (w === 1 ? '' : `[${w - 1}:0] `);
 /**
  * ts_probe_ctrl: everything of the probe that does not depend on the design. It instantiates the link blocks
  * itself rather than ts_probe_link, because a reset command must reset the frame packer (so the next frame is
- * announced by an identification frame flagged "after reset") without cutting off the frame the stuffer and
- * transmitter are still sending.
+ * announced by an identification frame flagged "after reset") without resetting the transmitter, which may
+ * still be sending the last delimiter.
  */
 export function probeCtrlVerilog(): string {
   const op = PROBE_OPCODES;
   return `// ts_probe_ctrl: host command receiver, lockstep clock enable, cycle counter and host-driven inputs, with
-// the probe's serial link (frame packer, COBS stuffer, UART transmitter and receiver).
+// the probe's serial link (frame packer with CRC and COBS stuffing, UART transmitter and receiver).
 //
 // Lockstep: ce is high for one clock exactly on the edges where the packer takes a frame (start && ready), so
 // the frame holds the values of the cycle that this edge ends (payload is sampled on the same edge the design
 // advances on) and no cycle goes unreported, at any baud.
 //
-// Commands (docs/probe-protocol.md, "Host commands"): each arrives as COBS(opcode, arguments, CRC-16 high, low)
-// followed by 0x00. A segment is obeyed only if it is valid COBS, has its opcode's length, leaves a CRC residue
-// of 0 and had no UART framing error; otherwise it is ignored. IN_BITS is the design's input vector width
-// (0 allowed); its bytes follow the opcode LSB first, packed like the frame payload.
+// Commands (docs/probe-protocol.md, "Host commands"): each arrives as COBS(opcode, ARG_BYTES argument bytes,
+// CRC-16/MCRF4XX low, high) followed by 0x00, every command of the same length. A segment is obeyed only if it
+// is valid COBS, has that length and a valid opcode, leaves a CRC residue of 0 and had no UART framing error;
+// otherwise it is ignored. IN_BITS is the design's input vector width (0 allowed); the vector follows the opcode
+// LSB first, packed like the frame payload; the step count follows it as 16 bits, low byte first.
 module ts_probe_ctrl #(
   parameter integer IN_BITS       = 8,
   parameter integer PAYLOAD_BITS  = 32,
@@ -89,157 +90,199 @@ module ts_probe_ctrl #(
 
   localparam integer IN_W      = IN_BITS > 0 ? IN_BITS : 1;
   localparam integer IN_BYTES  = (IN_BITS + 7) / 8;
-  localparam integer ARG_BYTES = IN_BYTES > 2 ? IN_BYTES : 2;
-  localparam integer SR_BITS   = 8 * (ARG_BYTES + 2);          // arguments and the two CRC bytes
-  localparam integer LEN_IN_I  = IN_BYTES + 3;
-  localparam integer MAX_LEN   = LEN_IN_I > 5 ? LEN_IN_I : 5;  // longest command, raw bytes
-  localparam integer CW        = clog2(MAX_LEN + 2);           // counts 0 .. MAX_LEN + 1 (= too long)
-  localparam integer TOO_LONG_I = MAX_LEN + 1;
-  localparam [CW-1:0] TOO_LONG   = TOO_LONG_I[CW-1:0];
-  localparam [CW-1:0] LEN_PLAIN  = 3;
-  localparam [CW-1:0] LEN_STEP   = 5;
-  localparam [CW-1:0] LEN_INPUTS = LEN_IN_I[CW-1:0];
-  // Opcodes fit 3 bits; a command whose opcode byte has any higher bit set is ignored.
+  localparam integer ARG_BYTES = IN_BYTES > 2 ? IN_BYTES : 2;  // room for the input vector and a step count
+  localparam integer ARG_BITS  = 8 * ARG_BYTES;
+  localparam integer LEN_I     = ARG_BYTES + 3;                // every command, raw bytes
+  localparam integer CW        = clog2(LEN_I + 2);             // counts 0 .. LEN_I + 1: all ones is too long
+  localparam [CW-1:0] LEN       = LEN_I[CW-1:0];
+  localparam [CW-1:0] LAST_ARG  = ARG_BYTES[CW-1:0];
+  localparam [CW-1:0] ONE       = 1;
+  localparam [CW-1:0] DAMAGED   = {CW{1'b1}};
+  localparam [7:0]    LONG_CODE = 8'hFF << CW;                 // bits of a code byte that run_left cannot hold
   localparam [2:0]   OP_RUN = 3'd${op.run}, OP_HALT = 3'd${op.halt}, OP_STEP = 3'd${op.step}, OP_RESET = 3'd${op.reset};
   localparam [2:0]   OP_HOST_ON = 3'd${op.hostInputsOn}, OP_HOST_OFF = 3'd${op.hostInputsOff}, OP_INPUTS = 3'd${op.inputs};
 
   // ---- serial link ------------------------------------------------------------------------------------
   wire       ready;
-  wire [7:0] raw_data, wire_data, rx_data;
-  wire       raw_valid, raw_last, raw_ready, wire_valid, wire_ready, rx_valid, rx_error;
+  wire [7:0] rx_data;
+  wire       tx_valid, tx_bit, tx_last, tx_advance, rx_valid, rx_error, rx_bit_strobe, rx_bit_data;
   reg        reset_now;   // one clock: a reset command is being applied
   reg  [6:0] counter;     // design cycle number modulo 128, restarted by every reset
+
+  // The step count and the cycle counter change at most once per frame, and a frame keeps the packer busy for
+  // far longer than 16 clocks, so both are updated one bit per clock in a pass of 16 clocks: after a ce the
+  // count goes down by one and the counter up by one, each through a one-bit subtractor or adder while its
+  // register rotates; after a step command the count is shifted in from the argument register. This spares a
+  // 16-bit and a 7-bit adder, the count's load multiplexer and a 16-bit comparison.
+  reg  [15:0] steps;        // cycles still to run while stepping (valid while no pass runs)
+  reg         steps_left;   // steps != 0, found during the last pass
+  reg         pass_busy;    // a pass is rotating the registers; pass_at is the bit position
+  reg  [3:0]  pass_at;
+  reg         pass_load;    // this pass loads the step count instead of counting it down
+  reg         pass_count;   // this pass also adds one to the cycle counter (it follows a ce)
+  reg         load_due;     // a step command waits for the pass in progress to end
+  reg         borrow, carry;
 
   ts_frame_packer #(.PAYLOAD_BITS (PAYLOAD_BITS), .FINGERPRINT (FINGERPRINT), .ID_EVERY_LOG2 (ID_EVERY_LOG2)) packer (
     .clk (clk), .rst (rst || reset_now),
     .start (ce), .payload (payload), .cycle (counter), .ready (ready),
-    .out_data (raw_data), .out_valid (raw_valid), .out_last (raw_last), .out_ready (raw_ready)
-  );
-  ts_cobs_stuffer stuffer (
-    .clk (clk), .rst (rst),
-    .in_data (raw_data), .in_valid (raw_valid), .in_last (raw_last), .in_ready (raw_ready),
-    .out_data (wire_data), .out_valid (wire_valid), .out_ready (wire_ready)
+    .tx_valid (tx_valid), .tx_bit (tx_bit), .tx_last (tx_last), .tx_advance (tx_advance)
   );
   ts_uart_tx #(.DIVISOR (DIVISOR)) transmitter (
-    .clk (clk), .rst (rst), .data (wire_data), .valid (wire_valid), .ready (wire_ready), .txd (txd)
+    .clk (clk), .rst (rst), .valid (tx_valid), .data_bit (tx_bit), .last (tx_last), .advance (tx_advance), .txd (txd)
   );
   ts_uart_rx #(.DIVISOR (DIVISOR)) receiver (
-    .clk (clk), .rst (rst), .rxd (rxd), .data (rx_data), .valid (rx_valid), .frame_error (rx_error)
+    .clk (clk), .rst (rst), .rxd (rxd), .data (rx_data), .valid (rx_valid), .frame_error (rx_error),
+    .bit_strobe (rx_bit_strobe), .bit_data (rx_bit_data)
   );
 
-  // ---- command receiver: COBS decoding one byte at a time ---------------------------------------------
+  // ---- command receiver: COBS decoding one byte at a time, CRC and arguments one bit at a time -----------
   // Counters are only as wide as the longest command needs: a COBS block or a command longer than that
-  // cannot be valid, so it just marks the command damaged.
-  reg  [CW-1:0]      run_left;   // stuffed bytes left in the current COBS block; 0 = next byte is a code byte
-  reg                zero_due;   // the current block ends in an implied 0x00 (emitted when the next block starts)
-  reg  [CW-1:0]      count;      // decoded bytes of this command so far (TOO_LONG: longer than any command)
-  reg                damaged;    // framing error, overlong block or opcode above 7 since the last delimiter
-  reg  [2:0]         opcode;
-  // The CRC bytes pass through the argument register on their way; the CRC unit checks them, nothing reads them.
+  // cannot be valid. count doubles as the damage flag: its all-ones value (DAMAGED, above any command's length)
+  // marks a segment that can no longer be accepted.
+  reg  [CW-1:0]       run_left;   // 1 + stuffed bytes left in the current COBS block; 1: a code byte is next
+  reg                 zero_due;   // the current block ends in an implied 0x00 (emitted when the next block starts)
+  reg  [CW-1:0]       count;      // decoded bytes of this command so far, or DAMAGED
+  // The opcode and argument bits in arrival order, the latest at the top: once the arguments are in, the
+  // opcode is the low byte and the arguments sit above it. The opcode's bits 7..3 (checked zero on arrival)
+  // and argument bits no command uses are never read.
   /* verilator lint_off UNUSEDSIGNAL */
-  reg  [SR_BITS-1:0] args;       // decoded bytes after the opcode, the latest in the low byte
+  reg  [ARG_BITS+7:0] args;
   /* verilator lint_on UNUSEDSIGNAL */
-  wire [15:0]        crc;
+  wire [2:0]          opcode = args[2:0];
+  wire [15:0]         crc;
 
   wire       delimiter = rx_valid && rx_data == 8'h00;
-  wire       code_byte = rx_valid && rx_data != 8'h00 && run_left == {CW{1'b0}};
-  wire       data_byte = rx_valid && rx_data != 8'h00 && run_left != {CW{1'b0}};
+  wire       data_due  = run_left != ONE;  // the byte on its way is a data byte, not a code byte
+  wire       code_byte = rx_valid && rx_data != 8'h00 && !data_due;
+  wire       data_byte = rx_valid && rx_data != 8'h00 && data_due;
   wire       decoded   = data_byte || (code_byte && zero_due);
-  wire [7:0] dec_byte  = data_byte ? rx_data : 8'h00;
-  wire       long_code = rx_data > TOO_LONG_I[7:0];   // a block longer than any command
+  // A code byte too big for run_left announces a block longer than any command; an opcode byte must be a data
+  // byte (a zero is no opcode) with no bit above the third (opcodes fit 3 bits).
+  wire       damage    = rx_error || (code_byte && (rx_data & LONG_CODE) != 8'h00) ||
+                         (decoded && count == {CW{1'b0}} && (!data_byte || rx_data[7:3] != 5'd0));
 
-  ts_crc16 command_check (.clk (clk), .init (rst || delimiter), .enable (decoded), .data (dec_byte), .crc (crc));
+  // The decoded bits, as the receiver samples them (least significant first), feed the CRC and the argument
+  // register. Whether a byte is data or a code byte is known before its first bit: a data byte's bits go in as
+  // they are; a code byte stands for the zero that ended the previous block, so it feeds 8 zero bits, except the
+  // first code byte of a segment, which stands for nothing. The delimiter then feeds 8 zero bits as well (it
+  // arrives where a code byte would), but they leave a CRC register at 0 unchanged and a non-zero one non-zero,
+  // so the residue test at the delimiter is unaffected. A 0x00 arriving mid-block makes the segment invalid anyway.
+  wire feed     = rx_bit_strobe && (data_due || zero_due);
+  wire feed_bit = rx_bit_data && data_due;
+  // CRC-16/MCRF4XX: the reflected form of the frames' CRC, so that it can take the bits in line order.
+  ts_crc16 #(.REFLECTED (1)) command_check (.clk (clk), .init (rst || delimiter), .enable (feed), .data (feed_bit), .crc (crc));
 
-  reg [CW-1:0] needed;
-  always @* begin
-    case (opcode)
-      OP_RUN, OP_HALT, OP_RESET, OP_HOST_ON, OP_HOST_OFF: needed = LEN_PLAIN;
-      OP_STEP:   needed = LEN_STEP;
-      OP_INPUTS: needed = LEN_INPUTS;
-      default:   needed = {CW{1'b0}};  // never matches: a segment with 0 bytes has the CRC register at 0xFFFF
-    endcase
+  // Decoded bytes 0 .. ARG_BYTES (opcode and arguments) are kept, the CRC bytes are not. A pass that loads the
+  // step count shifts the register too, to take the count out bit by bit.
+  always @(posedge clk) begin
+    if ((feed && count <= LAST_ARG) || (pass_busy && pass_load)) args <= {feed_bit, args[ARG_BITS+7:1]};
   end
-  wire accept = delimiter && !damaged && run_left == {CW{1'b0}} && count == needed && crc == 16'h0000;
+
+  // A damaged segment has count at DAMAGED, never LEN; an opcode of 0 has damaged it.
+  wire accept = delimiter && !data_due && count == LEN && crc == 16'h0000;
 
   always @(posedge clk) begin
     if (rst || delimiter) begin
-      run_left <= {CW{1'b0}};
+      run_left <= ONE;
       zero_due <= 1'b0;
       count    <= {CW{1'b0}};
-      damaged  <= 1'b0;
     end else begin
-      if (rx_error || (code_byte && long_code) || (decoded && count == {CW{1'b0}} && dec_byte[7:3] != 5'd0)) damaged <= 1'b1;
       if (code_byte) begin
-        run_left <= rx_data[CW-1:0] - 1'b1;
+        run_left <= rx_data[CW-1:0];
         // Only a full 254-byte block (code 0xFF) has no implied zero; shorter commands never use one.
-        zero_due <= MAX_LEN < 254 || rx_data != 8'hFF;
+        zero_due <= LEN_I < 254 || rx_data != 8'hFF;
       end else if (data_byte) begin
         run_left <= run_left - 1'b1;
       end
-      // A byte past TOO_LONG marks the command damaged, so a wrapping count can never pass for a valid length.
-      if (decoded) count <= count + 1'b1;
-      if (decoded && count == TOO_LONG) damaged <= 1'b1;
+      // count stops at DAMAGED, so a long segment can never wrap round to a valid length.
+      if (damage) count <= DAMAGED;
+      else if (decoded && count != DAMAGED) count <= count + 1'b1;
     end
   end
 
-  always @(posedge clk) begin
-    if (decoded) begin
-      if (count == {CW{1'b0}}) opcode <= dec_byte[2:0];
-      else args <= {args[SR_BITS-9:0], dec_byte};
-    end
-  end
-
-  // Argument byte j (sent j-th after the opcode) sits at args[8*(n+2-j)-1 -: 8] once n argument bytes and the
-  // two CRC bytes have been shifted in.
-  wire [15:0] step_arg = {args[23:16], args[31:24]};
+  // Argument byte 0 is just above the opcode (arguments are sent LSB first). The step count is loaded one bit
+  // at a time from its lowest bit while the register shifts, so only bit 0 is read; the whole word is named for
+  // testbenches.
+  /* verilator lint_off UNUSEDSIGNAL */
+  wire [15:0] step_arg = args[8 +: 16];
+  /* verilator lint_on UNUSEDSIGNAL */
   wire [IN_W-1:0] host_arg;
   generate
     if (IN_BITS > 0) begin : vector
-      // The top bits of the last byte are padding: the host sends them as 0 and nothing reads them.
-      /* verilator lint_off UNUSEDSIGNAL */
-      wire [IN_BYTES*8-1:0] bytes_le;
-      /* verilator lint_on UNUSEDSIGNAL */
-      genvar j;
-      for (j = 0; j < IN_BYTES; j = j + 1) begin : unpack
-        assign bytes_le[8*j +: 8] = args[8*(IN_BYTES+2-j)-8 +: 8];
-      end
-      assign host_arg = bytes_le[IN_W-1:0];
+      assign host_arg = args[8 +: IN_W];
     end else begin : no_vector
       assign host_arg = 1'b0;
     end
   endgenerate
 
   // ---- lockstep control ---------------------------------------------------------------------------------
-  reg             running;     // free-running lockstep
-  reg  [15:0]     steps;       // cycles still to run while not free-running
-  reg             host_mode;   // the design sees host_in instead of the pins
+  reg             running;      // free-running lockstep
+  reg             stepping;     // a step command is being carried out
+  reg             host_mode;    // the design sees host_in instead of the pins
   reg  [IN_W-1:0] host_in;
-  reg             reset_due;   // a reset command waits for the packer to be idle
+  reg             reset_due;    // a reset command waits for the packer to be idle
+
+  wire step_cmd  = accept && opcode == OP_STEP;
+  wire step_bit  = pass_load ? step_arg[0] : steps[0] ^ borrow;
+  wire pass_go   = !pass_busy && (ce || load_due || step_cmd);
 
   // A frame is started only when the packer can take it, so ce is exactly the packer's taking edge; never
-  // during a reset, so that ce counts design cycles and nothing else.
-  wire go = (running || steps != 16'd0) && !reset_due && !reset_now && !rst;
+  // during a reset, so that ce counts design cycles and nothing else, nor while a pass has the counts.
+  wire go = (running || (stepping && steps_left)) && !pass_busy && !load_due && !reset_due && !reset_now && !rst;
   assign ce         = go && ready;
   assign inputs     = host_mode ? host_in : pins;
   // Both terms are register outputs, so the design's asynchronous reset sees no glitch from this gate.
   assign design_rst = rst || reset_now;
 
   always @(posedge clk) begin
+    if (pass_busy) begin
+      steps      <= {step_bit, steps[15:1]};
+      borrow     <= borrow && !steps[0];
+      steps_left <= steps_left || step_bit;
+      pass_at    <= pass_at + 4'd1;
+    end else begin
+      borrow     <= 1'b1;
+      steps_left <= steps_left && !pass_go;
+      pass_at    <= 4'd0;
+    end
+  end
+
+  always @(posedge clk) begin
+    if (rst) begin
+      pass_busy <= 1'b0;
+      load_due  <= 1'b0;
+    end else if (pass_go) begin
+      pass_busy  <= 1'b1;
+      pass_load  <= load_due || step_cmd;
+      pass_count <= ce;
+      load_due   <= 1'b0;
+    end else begin
+      if (pass_at == 4'd15) pass_busy <= 1'b0;
+      if (step_cmd) load_due <= 1'b1;
+    end
+  end
+
+  always @(posedge clk) begin
     if (rst) begin
       running   <= START_HALTED == 0;
-      steps     <= 16'd0;
+      stepping  <= 1'b0;
       host_mode <= 1'b0;
       host_in   <= {IN_W{1'b0}};
       reset_due <= 1'b0;
       reset_now <= 1'b0;
       counter   <= 7'd0;
+      carry     <= 1'b1;
     end else begin
       reset_now <= 1'b0;
-      if (ce) begin
-        counter <= counter + 7'd1;
-        if (!running) steps <= steps - 16'd1;
+      if (pass_busy && pass_count && pass_at < 4'd7) begin
+        counter <= {counter[0] ^ carry, counter[6:1]};
+        carry   <= carry && counter[0];
+      end else if (!pass_busy) begin
+        carry <= 1'b1;
       end
-      // Between frames (the packer idle), the design and the packer are reset for one clock.
+      // Between frames (the packer idle, so no pass is counting), the design and the packer are reset for one
+      // clock; the counter restarts at 0.
       if (reset_due && ready) begin
         reset_due <= 1'b0;
         reset_now <= 1'b1;
@@ -247,9 +290,9 @@ module ts_probe_ctrl #(
       end
       if (accept) begin
         case (opcode)
-          OP_RUN:      begin running <= 1'b1; steps <= 16'd0; end
-          OP_HALT:     begin running <= 1'b0; steps <= 16'd0; end
-          OP_STEP:     begin running <= 1'b0; steps <= step_arg; end
+          OP_RUN:      begin running <= 1'b1; stepping <= 1'b0; end
+          OP_HALT:     begin running <= 1'b0; stepping <= 1'b0; end
+          OP_STEP:     begin running <= 1'b0; stepping <= 1'b1; end
           OP_RESET:    reset_due <= 1'b1;
           OP_HOST_ON:  host_mode <= 1'b1;
           OP_HOST_OFF: host_mode <= 1'b0;

@@ -34,7 +34,7 @@ export interface ProbeBuild {
 export type ProbeBuildResult = ({ ok: true } & ProbeBuild) | { ok: false; error: string };
 export type ProbeFilesResult = { ok: true; files: HdlFile[]; notes: string[] } | { ok: false; error: string };
 
-/** The generic blocks the board needs, one module per file: UART, CRC, COBS stuffer, frame packer, ts_probe_ctrl. */
+/** The generic blocks the board needs, one module per file: UART, CRC, the frame packer (which does its own COBS stuffing), ts_probe_ctrl. */
 export function probeBlockFiles(): HdlFile[] {
   const blocks = protocolVerilogBlocks().filter((b) => b.module !== 'ts_probe_link');
   return [...blocks, { module: 'ts_probe_ctrl', source: probeCtrlVerilog() }].map((b) => ({ name: `${b.module}.v`, text: `\`timescale 1ns/1ps\n${b.source}` }));

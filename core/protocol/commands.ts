@@ -1,8 +1,45 @@
 // Host-to-board commands of the probe: run, halt, step N, reset, host-driven inputs on/off and the input vector.
-// Framed like the uplink (CRC-16 + COBS + 0x00); the decoder accepts exactly what the board's receiver accepts.
-import { crc16 } from './crc';
+// Framed like the uplink (CRC-16 + COBS + 0x00), but with the reflected form of the frames' CRC, which the board
+// folds in bit by bit as its UART receives them; the decoder accepts exactly what the board's receiver accepts.
 import { cobsDecodeInto, cobsEncode, cobsErrorText } from './cobs';
 import { MAX_FRAME_BYTES, MAX_WIRE_SEGMENT, packFields, unpackFields, type FrameField, type FrameLayout, makeLayout } from './frame';
+
+/**
+ * The check word of a command: CRC-16/MCRF4XX from the CRC catalogue. It is CRC-16/IBM-3740 (the frames' CRC,
+ * ./crc.ts) with input and output reflected, i.e. each byte taken least significant bit first, the order in
+ * which a UART carries it. It is appended low byte first; a command followed by its own CRC leaves 0x0000.
+ */
+export const COMMAND_CRC_PARAMS = {
+  name: 'CRC-16/MCRF4XX',
+  width: 16,
+  poly: 0x1021,
+  init: 0xffff,
+  refin: true,
+  refout: true,
+  xorout: 0x0000,
+  residue: 0x0000,
+} as const;
+
+/** 0x1021 with its 16 bits in reverse order: the polynomial of the right-shifting (reflected) register. */
+const POLY_REVERSED = 0x8408;
+
+/** One table entry per value of the register's low byte XOR the incoming byte. */
+const COMMAND_CRC_TABLE = (() => {
+  const table = new Uint16Array(256);
+  for (let i = 0; i < 256; i++) {
+    let r = i;
+    for (let bit = 0; bit < 8; bit++) r = r & 1 ? (r >>> 1) ^ POLY_REVERSED : r >>> 1;
+    table[i] = r;
+  }
+  return table;
+})();
+
+/** CRC-16/MCRF4XX of bytes[start, end). */
+export function commandCrc(bytes: Uint8Array, start = 0, end = bytes.length): number {
+  let r: number = COMMAND_CRC_PARAMS.init;
+  for (let i = start; i < end; i++) r = (r >>> 8) ^ COMMAND_CRC_TABLE[(r ^ bytes[i]) & 0xff];
+  return r ^ COMMAND_CRC_PARAMS.xorout;
+}
 
 /**
  * A command as the host means it.
@@ -37,8 +74,18 @@ export const COMMAND_OPCODE = {
 /** Largest step count: the argument is 16 bits. */
 export const MAX_STEP_CYCLES = 0xffff;
 
-/** Raw length (opcode + arguments + CRC) of the commands without a design-dependent argument. */
-export const PLAIN_COMMAND_BYTES = 3;
+/**
+ * Every command has the same raw length for a given design: opcode, argument bytes, CRC. The argument bytes
+ * have room for the larger of the input vector and the 16-bit step count; a command uses what it needs from
+ * the start and sends the rest as 0 (the board does not read it). One length for all lets the board check it
+ * against a constant.
+ */
+export function commandArgumentBytes(vectorBytes: number): number {
+  return Math.max(2, vectorBytes);
+}
+
+/** Raw length of every command for a design whose input vector takes at most 2 bytes (up to 16 input bits). */
+export const PLAIN_COMMAND_BYTES = 5;
 export const STEP_COMMAND_BYTES = 5;
 
 /** The design's input vector as the `inputs` command packs it: the same LSB-first packing as a frame payload. */
@@ -57,34 +104,42 @@ export function inputVector(widths: readonly number[]): InputVector {
   return { widths: widths.slice(), bytes: layout.payloadBytes, layout };
 }
 
-/** Raw length of the `inputs` command for a design whose inputs take `vectorBytes` bytes. */
+/** Raw length of the `inputs` command (and so of every command) for a design whose inputs take `vectorBytes` bytes. */
 export function inputsCommandBytes(vectorBytes: number): number {
-  return 1 + vectorBytes + 2;
+  return 1 + commandArgumentBytes(vectorBytes) + 2;
 }
 
 export type CommandEncodeResult = { ok: true; wire: Uint8Array } | { ok: false; error: string };
 
-/** Opcode and argument bytes (no CRC); throws RangeError naming the problem for a command that cannot be sent. */
+/**
+ * Opcode and argument bytes (no CRC), the arguments zero-filled to `commandArgumentBytes`; throws RangeError
+ * naming the problem for a command that cannot be sent.
+ */
 function commandBody(cmd: HostCommand, vector: InputVector): Uint8Array {
+  const body = new Uint8Array(1 + commandArgumentBytes(vector.bytes));
   switch (cmd.kind) {
     case 'run':
-      return Uint8Array.of(COMMAND_OPCODE.run);
+      body[0] = COMMAND_OPCODE.run;
+      return body;
     case 'halt':
-      return Uint8Array.of(COMMAND_OPCODE.halt);
+      body[0] = COMMAND_OPCODE.halt;
+      return body;
     case 'reset':
-      return Uint8Array.of(COMMAND_OPCODE.reset);
+      body[0] = COMMAND_OPCODE.reset;
+      return body;
     case 'host-inputs':
-      return Uint8Array.of(cmd.on ? COMMAND_OPCODE.hostInputsOn : COMMAND_OPCODE.hostInputsOff);
+      body[0] = cmd.on ? COMMAND_OPCODE.hostInputsOn : COMMAND_OPCODE.hostInputsOff;
+      return body;
     case 'step': {
       const n = cmd.cycles;
       if (!Number.isInteger(n) || n < 0 || n > MAX_STEP_CYCLES) throw new RangeError(`step command: the cycle count must be an integer from 0 to ${MAX_STEP_CYCLES} (got ${String(n)})`);
-      return Uint8Array.of(COMMAND_OPCODE.step, n & 0xff, n >>> 8);
+      body.set([COMMAND_OPCODE.step, n & 0xff, n >>> 8]);
+      return body;
     }
     case 'inputs': {
       if (!Array.isArray(cmd.values) || cmd.values.length !== vector.widths.length) {
         throw new RangeError(`inputs command: the design has ${vector.widths.length} inputs but ${Array.isArray(cmd.values) ? cmd.values.length : 'no list of'} values were given`);
       }
-      const body = new Uint8Array(1 + vector.bytes);
       body[0] = COMMAND_OPCODE.inputs;
       if (vector.layout) {
         cmd.values.forEach((v, i) => {
@@ -100,14 +155,14 @@ function commandBody(cmd: HostCommand, vector: InputVector): Uint8Array {
   }
 }
 
-/** Opcode, arguments and CRC-16 (high byte first), before stuffing. */
+/** Opcode, arguments and CRC-16/MCRF4XX (low byte first), before stuffing. */
 export function rawCommand(cmd: HostCommand, vector: InputVector): Uint8Array {
   const body = commandBody(cmd, vector);
   const raw = new Uint8Array(body.length + 2);
   raw.set(body);
-  const crc = crc16(body);
-  raw[body.length] = crc >>> 8;
-  raw[body.length + 1] = crc & 0xff;
+  const crc = commandCrc(body);
+  raw[body.length] = crc & 0xff;
+  raw[body.length + 1] = crc >>> 8;
   return raw;
 }
 
@@ -151,28 +206,16 @@ export type CommandEvent =
 
 export type CommandDecoderStats = { bytes: number; commands: number; rejected: number };
 
-/** Raw length a command with this opcode must have, or null for an opcode the board does not know. */
+/** Raw length a command with this opcode must have (the same for all), or null for an opcode the board does not know. */
 export function expectedCommandLength(opcode: number, vector: InputVector): number | null {
-  switch (opcode) {
-    case COMMAND_OPCODE.run:
-    case COMMAND_OPCODE.halt:
-    case COMMAND_OPCODE.reset:
-    case COMMAND_OPCODE.hostInputsOn:
-    case COMMAND_OPCODE.hostInputsOff:
-      return PLAIN_COMMAND_BYTES;
-    case COMMAND_OPCODE.step:
-      return STEP_COMMAND_BYTES;
-    case COMMAND_OPCODE.inputs:
-      return inputsCommandBytes(vector.bytes);
-    default:
-      return null;
-  }
+  return Number.isInteger(opcode) && opcode >= COMMAND_OPCODE.run && opcode <= COMMAND_OPCODE.inputs ? inputsCommandBytes(vector.bytes) : null;
 }
 
 /**
  * The board's command receiver in TypeScript: bytes in any chunking, commands out. A segment between two
- * 0x00 bytes is obeyed only if it is valid COBS, has the length its opcode requires and a CRC residue of 0;
- * anything else is reported and ignored. Empty segments (repeated 0x00) are idle filler. Never throws.
+ * 0x00 bytes is obeyed only if it is valid COBS, has a known opcode and the command length, and leaves a CRC
+ * residue of 0; anything else is reported and ignored. Argument bytes a command does not use are not looked at,
+ * as on the board. Empty segments (repeated 0x00) are idle filler. Never throws.
  */
 export class CommandDecoder {
   private readonly segment = new Uint8Array(MAX_WIRE_SEGMENT);
@@ -216,8 +259,8 @@ export class CommandDecoder {
     const expected = expectedCommandLength(opcode, this.vector);
     if (expected === null) return this.reject(events, `unknown opcode 0x${opcode.toString(16).padStart(2, '0')}`);
     if (n !== expected) return this.reject(events, `opcode 0x${opcode.toString(16).padStart(2, '0')} needs ${expected} bytes, got ${n}`);
-    // Running the CRC over the frame and its own check word leaves 0 (the residue of CRC-16/IBM-3740).
-    if (crc16(this.raw, 0, n) !== 0) return this.reject(events, 'CRC mismatch');
+    // Running the CRC over the command and its own check word leaves 0 (the residue of CRC-16/MCRF4XX).
+    if (commandCrc(this.raw, 0, n) !== COMMAND_CRC_PARAMS.residue) return this.reject(events, 'CRC mismatch');
     this.counts.commands++;
     events.push({ kind: 'command', command: this.command(opcode), offset: this.start });
   }

@@ -3,6 +3,5 @@
 export * from './common';
 export * from './uart';
 export * from './crc16';
-export * from './cobs';
 export * from './packer';
 export * from './link';

@@ -1,8 +1,7 @@
-// The probe's serial link in Verilog-2001: frame packer, CRC, COBS stuffer and UART transmitter in a chain,
-// plus a UART receiver for bytes from the host. Also bundles every generic block into one source text.
+// The probe's serial link in Verilog-2001: frame packer (with its CRC and COBS stuffing) and UART transmitter in
+// a chain, plus a UART receiver for bytes from the host. Also bundles every generic block into one source text.
 import { MODULE_PREFIX } from './common';
 import { crc16Verilog } from './crc16';
-import { cobsStufferVerilog } from './cobs';
 import { framePackerVerilog } from './packer';
 import { uartRxVerilog, uartTxVerilog } from './uart';
 
@@ -28,10 +27,11 @@ module ts_probe_link #(
   output wire                    rx_valid,
   output wire                    rx_error
 );
-  wire [7:0] raw_data;
-  wire       raw_valid, raw_last, raw_ready;
-  wire [7:0] wire_data;
-  wire       wire_valid, wire_ready;
+  wire tx_valid, tx_bit, tx_last, tx_advance;
+  // A bit-serial consumer of host bytes would use these; the link only passes bytes on.
+  /* verilator lint_off UNUSEDSIGNAL */
+  wire rx_bit_strobe, rx_bit_data;
+  /* verilator lint_on UNUSEDSIGNAL */
 
   ts_frame_packer #(
     .PAYLOAD_BITS  (PAYLOAD_BITS),
@@ -40,23 +40,18 @@ module ts_probe_link #(
   ) packer (
     .clk (clk), .rst (rst),
     .start (start), .payload (payload), .cycle (cycle), .ready (ready),
-    .out_data (raw_data), .out_valid (raw_valid), .out_last (raw_last), .out_ready (raw_ready)
-  );
-
-  ts_cobs_stuffer stuffer (
-    .clk (clk), .rst (rst),
-    .in_data (raw_data), .in_valid (raw_valid), .in_last (raw_last), .in_ready (raw_ready),
-    .out_data (wire_data), .out_valid (wire_valid), .out_ready (wire_ready)
+    .tx_valid (tx_valid), .tx_bit (tx_bit), .tx_last (tx_last), .tx_advance (tx_advance)
   );
 
   ts_uart_tx #(.DIVISOR (DIVISOR)) transmitter (
     .clk (clk), .rst (rst),
-    .data (wire_data), .valid (wire_valid), .ready (wire_ready), .txd (txd)
+    .valid (tx_valid), .data_bit (tx_bit), .last (tx_last), .advance (tx_advance), .txd (txd)
   );
 
   ts_uart_rx #(.DIVISOR (DIVISOR)) receiver (
     .clk (clk), .rst (rst),
-    .rxd (rxd), .data (rx_data), .valid (rx_valid), .frame_error (rx_error)
+    .rxd (rxd), .data (rx_data), .valid (rx_valid), .frame_error (rx_error),
+    .bit_strobe (rx_bit_strobe), .bit_data (rx_bit_data)
   );
 endmodule
 `;
@@ -71,7 +66,6 @@ export function protocolVerilogBlocks(): VerilogBlock[] {
     { module: `${MODULE_PREFIX}uart_tx`, source: uartTxVerilog() },
     { module: `${MODULE_PREFIX}uart_rx`, source: uartRxVerilog() },
     { module: `${MODULE_PREFIX}crc16`, source: crc16Verilog() },
-    { module: `${MODULE_PREFIX}cobs_stuffer`, source: cobsStufferVerilog() },
     { module: `${MODULE_PREFIX}frame_packer`, source: framePackerVerilog() },
     { module: `${MODULE_PREFIX}probe_link`, source: probeLinkVerilog() },
   ];
