@@ -395,7 +395,7 @@ function partlyReadSignals(m: Machine, syn: Synthesis): string[] {
     used.set(name, s);
   };
   const walk = (e: Expr) => {
-    if ((e.kind === 'input' || e.kind === 'reg') && true) mark(e.name, 0, e.type.width - 1);
+    if (e.kind === 'input' || e.kind === 'reg') mark(e.name, 0, e.type.width - 1);
     else if (e.kind === 'slice' && (e.arg.kind === 'input' || e.arg.kind === 'reg')) mark(e.arg.name, e.lsb, e.msb);
     else if ('arg' in e) walk(e.arg);
     if (e.kind === 'binary') {
@@ -506,7 +506,7 @@ function topModule(m: Machine, syn: Synthesis, opts: HdlOptions, n: { top: strin
   const undriven = m.outputs.filter((o) => !ctrlOutputs.has(o.name) && !syn.datapath.outputs.some((d) => d.output === o.name));
   for (const o of undriven) L.push(`  assign ${o.name} = ${literal(o.defaultBits, o.type.width)}; // never driven by a state: its default`);
   const unusedCtrl = syn.controller.outputs.filter((o) => o.role !== 'output' && !usedControls.has(o.name));
-  if (unusedCtrl.length || true) {
+  {
     L.push('');
     L.push('  // The state code is observed by the probe and testbenches through this wire.');
     L.push('  /* verilator lint_off UNUSEDSIGNAL */');
