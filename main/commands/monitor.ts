@@ -123,6 +123,11 @@ export async function run(argv: string[], io: CliIO): Promise<number> {
     if (silent > SILENCE_NOTE_MS && !session.silenceNoted) {
       session.silenceNoted = true;
       printer.event('link', { message: 'no data' }, `${WHO}: no data from the board for ${Math.round(silent / 1000)} s: check the baud, TX/RX crossing, that the board is powered and programmed`);
+      // A board that was halted, or powered after our first commands went out, never heard them: say them again.
+      if (p.cycleFrames === 0 && !opts.flags.has('no-reset') && !drive) {
+        io.err(`${WHO}: sending reset and run again\n`);
+        void session.restart();
+      }
     }
   }, STATUS_INTERVAL_MS);
 
@@ -183,6 +188,16 @@ class Session {
     if (this.stopped) return;
     this.stopped = r;
     this.stopWith?.(r);
+  }
+
+  /** Reset and run again, for a board that missed the first commands; a failure shows up as a lost link later. */
+  async restart(): Promise<void> {
+    try {
+      await this.send({ kind: 'reset' });
+      await this.send({ kind: 'run' });
+    } catch {
+      // The next write or the idle timer reports the link; nothing to add here.
+    }
   }
 
   private async send(cmd: HostCommand): Promise<void> {
