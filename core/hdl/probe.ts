@@ -5,6 +5,7 @@ import type { Machine } from '../ir/schema';
 import type { Synthesis } from '../synth/schema';
 import { TOOL_VERSION } from '../util/version';
 import { literal } from './expr';
+import { CLOG2_FUNCTION } from './verilog-text';
 import type { HdlFile, HdlNames } from './modules';
 
 /** One payload field as the board must drive it (the probe layout's field list, in order). */
@@ -78,16 +79,7 @@ module ts_probe_ctrl #(
   output wire                                   txd,
   input  wire                                   rxd
 );
-  // Bits needed to count 0 .. value-1 (at least 1); a constant function, since Verilog-2001 lacks $clog2.
-  function integer clog2;
-    input integer value;
-    integer v;
-    begin
-      clog2 = 1;
-      for (v = 2; v < value; v = v * 2) clog2 = clog2 + 1;
-    end
-  endfunction
-
+${CLOG2_FUNCTION}
   localparam integer IN_W      = IN_BITS > 0 ? IN_BITS : 1;
   localparam integer IN_BYTES  = (IN_BITS + 7) / 8;
   localparam integer ARG_BYTES = IN_BYTES > 2 ? IN_BYTES : 2;  // room for the input vector and a step count

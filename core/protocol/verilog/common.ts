@@ -4,14 +4,5 @@
 /** Every generic module is named with this prefix so it cannot clash with a user's design. */
 export const MODULE_PREFIX = 'ts_';
 
-/** Constant function: bits needed to hold 0 .. value-1 (at least 1). Paste inside a module body. */
-export const CLOG2_FUNCTION = `  // Bits needed to count 0 .. value-1 (at least 1); a constant function, since Verilog-2001 lacks $clog2.
-  function integer clog2;
-    input integer value;
-    integer v;
-    begin
-      clog2 = 1;
-      for (v = 2; v < value; v = v * 2) clog2 = clog2 + 1;
-    end
-  endfunction
-`;
+/** Defined with the HDL text helpers (one stage down, so core/hdl can use it too); re-exported for the blocks here. */
+export { CLOG2_FUNCTION } from '../../hdl/verilog-text';
