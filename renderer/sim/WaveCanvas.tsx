@@ -59,8 +59,7 @@ function drawTrack(ctx: CanvasRenderingContext2D, t: Track, y: number, view: Wav
     }
     // A bus: a lozenge per run, with the value written inside when it fits.
     const slant = Math.min(4, (x1 - x0) / 2);
-    if (t.group === 'state' && !model) {
-      ctx.fillStyle = STATE_FILLS[Number(raw) % STATE_FILLS.length];
+    const lozenge = () => {
       ctx.beginPath();
       ctx.moveTo(x0, mid);
       ctx.lineTo(x0 + slant, top);
@@ -69,17 +68,14 @@ function drawTrack(ctx: CanvasRenderingContext2D, t: Track, y: number, view: Wav
       ctx.lineTo(x1 - slant, bottom);
       ctx.lineTo(x0 + slant, bottom);
       ctx.closePath();
+    };
+    if (t.group === 'state' && !model) {
+      ctx.fillStyle = STATE_FILLS[Number(raw) % STATE_FILLS.length];
+      lozenge();
       ctx.fill();
     }
     ctx.strokeStyle = model ? PALETTE.model : t.group === 'state' ? PALETTE.state : PALETTE.bus;
-    ctx.beginPath();
-    ctx.moveTo(x0, mid);
-    ctx.lineTo(x0 + slant, top);
-    ctx.lineTo(x1 - slant, top);
-    ctx.lineTo(x1, mid);
-    ctx.lineTo(x1 - slant, bottom);
-    ctx.lineTo(x0 + slant, bottom);
-    ctx.closePath();
+    lozenge();
     ctx.stroke();
     const label = valueText(t, raw, radix, stateNames);
     const room = x1 - x0 - 2 * slant - 4;
